@@ -1,0 +1,86 @@
+//! The command line: clap definitions and the non-interactive commands. Thin: every command
+//! calls the same library functions the terminal UI uses.
+
+pub mod args;
+mod sky;
+
+use std::io::Write;
+use std::process::ExitCode;
+
+use clap::Parser;
+
+pub use args::{Cli, Command};
+
+/// Exit codes (documented in the README): 0 ok, 1 failure, 2 usage error.
+pub mod exit {
+    pub const OK: u8 = 0;
+    pub const FAILURE: u8 = 1;
+    pub const USAGE: u8 = 2;
+}
+
+/// An error that ends a command, with the exit code it maps to.
+#[derive(Debug, thiserror::Error)]
+pub enum CliError {
+    /// The user asked for something malformed: exit code 2.
+    #[error("{0}")]
+    Usage(String),
+    /// Anything else that failed: exit code 1.
+    #[error(transparent)]
+    Failure(#[from] anyhow::Error),
+}
+
+impl CliError {
+    fn code(&self) -> u8 {
+        match self {
+            Self::Usage(_) => exit::USAGE,
+            Self::Failure(_) => exit::FAILURE,
+        }
+    }
+}
+
+/// Turns a validation error into a usage error (exit code 2).
+pub(crate) fn usage(e: impl std::fmt::Display) -> CliError {
+    CliError::Usage(e.to_string())
+}
+
+/// Entry point of the binary.
+pub fn main() -> ExitCode {
+    let cli = Cli::parse();
+    match run(cli) {
+        Ok(()) => ExitCode::from(exit::OK),
+        Err(e) => {
+            let mut err = std::io::stderr().lock();
+            let _ = writeln!(err, "nearsky: {e}");
+            if let CliError::Failure(inner) = &e {
+                for cause in inner.chain().skip(1) {
+                    let _ = writeln!(err, "  because: {cause}");
+                }
+            }
+            ExitCode::from(e.code())
+        }
+    }
+}
+
+fn run(cli: Cli) -> Result<(), CliError> {
+    let mut out = std::io::stdout().lock();
+    // The clock is read here, at the edge, and passed in.
+    let now = chrono::Utc::now();
+    let result = match cli.command {
+        Some(Command::Demo(a)) => crate::demo::print_summary(&mut out, &a).map_err(CliError::from),
+        Some(Command::Path(a)) => sky::path(&mut out, &a, now),
+        Some(Command::Sun(a)) => sky::sun(&mut out, &a, now),
+        None => {
+            crate::demo::print_summary(&mut out, &args::DemoArgs::default()).map_err(CliError::from)
+        }
+    };
+    match result {
+        // A closed pipe (`nearsky list | head`) is not a failure.
+        Err(CliError::Failure(e))
+            if e.downcast_ref::<std::io::Error>()
+                .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe) =>
+        {
+            Ok(())
+        }
+        other => other,
+    }
+}

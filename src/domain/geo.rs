@@ -1,0 +1,273 @@
+//! Distance and bearing between stations.
+//!
+//! Geodesics on the WGS84 ellipsoid by Karney's method (C. F. F. Karney, "Algorithms for
+//! geodesics", J. Geodesy 87:43–55, 2013), through the `geographiclib-rs` crate. Distances in
+//! km, bearings in degrees clockwise from true north in [0, 360). Between locators the centres
+//! are used, and the range the cells allow is given beside the centre figure.
+
+use std::collections::HashMap;
+
+use geographiclib_rs::{DirectGeodesic, Geodesic, InverseGeodesic};
+use serde::Serialize;
+
+use super::latlon::LatLon;
+use super::locator::Locator;
+
+/// Mean Earth radius for the spherical comparison formula (km).
+pub const SPHERE_RADIUS_KM: f64 = 6371.0;
+
+/// Paths shorter than this have no meaningful bearing (km): 1 m.
+const SAME_SPOT_KM: f64 = 0.001;
+/// Arc length (degrees) from which two points count as antipodal: every route is then about
+/// equally short and the azimuth is not unique.
+const ANTIPODAL_ARC_DEG: f64 = 179.999;
+
+/// What kind of answer a bearing is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "snake_case")]
+pub enum Direction {
+    /// An ordinary path with a unique initial bearing.
+    Defined,
+    /// Both ends at the same place (or in the same locator cell): no bearing.
+    SameSpot,
+    /// Antipodal: every direction is (almost) equally short.
+    Antipodal,
+}
+
+/// The geodesic between two points.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct Path {
+    pub distance_km: f64,
+    /// Initial bearing at A; `None` unless `direction` is `Defined`.
+    pub bearing_deg: Option<f64>,
+    /// Bearing from B back to A (forward azimuth at B + 180°, not initial + 180°).
+    pub reverse_bearing_deg: Option<f64>,
+    pub direction: Direction,
+}
+
+fn normalise_deg(a: f64) -> f64 {
+    let x = a.rem_euclid(360.0);
+    if x >= 360.0 { 0.0 } else { x }
+}
+
+/// The WGS84 geodesic from `a` to `b`.
+pub fn path(a: LatLon, b: LatLon) -> Path {
+    let g = Geodesic::wgs84();
+    let (s12, azi1, azi2, a12): (f64, f64, f64, f64) = g.inverse(a.lat, a.lon, b.lat, b.lon);
+    let distance_km = s12 / 1000.0;
+    let direction = if distance_km < SAME_SPOT_KM {
+        Direction::SameSpot
+    } else if a12 >= ANTIPODAL_ARC_DEG {
+        Direction::Antipodal
+    } else {
+        Direction::Defined
+    };
+    let defined = direction == Direction::Defined;
+    Path {
+        distance_km,
+        bearing_deg: defined.then(|| normalise_deg(azi1)),
+        reverse_bearing_deg: defined.then(|| normalise_deg(azi2 + 180.0)),
+        direction,
+    }
+}
+
+/// Distance on a sphere of radius 6371 km (haversine). For comparison only: on drill paths it
+/// is up to about 0.3 % off the ellipsoid.
+pub fn haversine_km(a: LatLon, b: LatLon) -> f64 {
+    let (p1, p2) = (a.lat.to_radians(), b.lat.to_radians());
+    let dp = p2 - p1;
+    let dl = (b.lon - a.lon).to_radians();
+    let h = (dp / 2.0).sin().powi(2) + p1.cos() * p2.cos() * (dl / 2.0).sin().powi(2);
+    2.0 * SPHERE_RADIUS_KM * h.sqrt().min(1.0).asin()
+}
+
+/// The point half-way along the geodesic: where a one-hop signal comes down from the layer.
+pub fn midpoint(a: LatLon, b: LatLon) -> LatLon {
+    let g = Geodesic::wgs84();
+    let (s12, azi1, _azi2, _a12): (f64, f64, f64, f64) = g.inverse(a.lat, a.lon, b.lat, b.lon);
+    let (lat, lon): (f64, f64) = g.direct(a.lat, a.lon, azi1, s12 / 2.0);
+    LatLon { lat, lon }
+}
+
+/// The path between two locators: centre to centre, with the range of distances the two cells
+/// allow.
+#[derive(Debug, Clone, Copy, PartialEq, Serialize)]
+pub struct LocatorPath {
+    /// Centre-to-centre geodesic. For cells that overlap (`JN17` and `JN17mm`), the direction is
+    /// `SameSpot`: "same square", no bearing.
+    pub centre: Path,
+    /// Shortest and longest distance between any point of one cell and any of the other.
+    pub min_km: f64,
+    pub max_km: f64,
+    /// A 2-character locator is at one end: the figures say almost nothing.
+    pub too_coarse: bool,
+}
+
+impl LocatorPath {
+    /// Whether both locators name (or contain) the same cell.
+    pub fn same_cell(&self) -> bool {
+        self.centre.direction == Direction::SameSpot
+    }
+
+    /// The same path seen from the other end.
+    pub fn reversed(&self) -> LocatorPath {
+        let mut r = *self;
+        r.centre.bearing_deg = self.centre.reverse_bearing_deg;
+        r.centre.reverse_bearing_deg = self.centre.bearing_deg;
+        r
+    }
+}
+
+/// Points sampled per cell edge to find the extreme distances (corners included). The nearest
+/// and farthest points of two small cells lie on their boundaries; 9 points per edge keep the
+/// error far below the cell size.
+const EDGE_SAMPLES: usize = 9;
+
+fn boundary(l: &Locator) -> Vec<LatLon> {
+    let sw = l.south_west();
+    let (dlat, dlon) = l.cell_size();
+    let n = EDGE_SAMPLES - 1;
+    let mut pts = Vec::with_capacity(4 * n);
+    for i in 0..n {
+        let t = i as f64 / n as f64;
+        pts.push(LatLon {
+            lat: sw.lat,
+            lon: sw.lon + t * dlon,
+        });
+        pts.push(LatLon {
+            lat: sw.lat + t * dlat,
+            lon: sw.lon + dlon,
+        });
+        pts.push(LatLon {
+            lat: sw.lat + dlat,
+            lon: sw.lon + (1.0 - t) * dlon,
+        });
+        pts.push(LatLon {
+            lat: sw.lat + (1.0 - t) * dlat,
+            lon: sw.lon,
+        });
+    }
+    pts.iter()
+        .map(|p| LatLon {
+            lat: p.lat.clamp(-90.0, 90.0),
+            lon: p.lon,
+        })
+        .collect()
+}
+
+fn cells_touch(a: &Locator, b: &Locator) -> bool {
+    let (sa, sb) = (a.south_west(), b.south_west());
+    let (ha, wa) = a.cell_size();
+    let (hb, wb) = b.cell_size();
+    let lat_overlap = sa.lat <= sb.lat + hb && sb.lat <= sa.lat + ha;
+    // Work in longitude relative to a's west edge, wrapped, so cells across ±180° are seen.
+    let rel = (sb.lon - sa.lon).rem_euclid(360.0);
+    let lon_overlap = rel <= wa || rel + wb >= 360.0;
+    lat_overlap && lon_overlap
+}
+
+/// Distance, bearings and the distance range between two locators.
+pub fn locator_path(a: &Locator, b: &Locator) -> LocatorPath {
+    let mut centre = path(a.centre(), b.centre());
+    if a.lies_in(b) || b.lies_in(a) {
+        centre.direction = Direction::SameSpot;
+        centre.bearing_deg = None;
+        centre.reverse_bearing_deg = None;
+    }
+    let (pa, pb) = (boundary(a), boundary(b));
+    let g = Geodesic::wgs84();
+    let mut min_km = f64::INFINITY;
+    let mut max_km: f64 = 0.0;
+    for p in &pa {
+        for q in &pb {
+            let (s12, _a12): (f64, f64) = g.inverse(p.lat, p.lon, q.lat, q.lon);
+            min_km = min_km.min(s12 / 1000.0);
+            max_km = max_km.max(s12 / 1000.0);
+        }
+    }
+    if cells_touch(a, b) {
+        min_km = 0.0;
+    }
+    LocatorPath {
+        centre,
+        min_km,
+        max_km: max_km.max(centre.distance_km),
+        too_coarse: a.is_too_coarse_for_distance() || b.is_too_coarse_for_distance(),
+    }
+}
+
+/// Locator paths computed once per pair. Coverage over a large log meets the same few hundred
+/// station pairs again and again; the geodesic (and its cell-range search) is done once each.
+#[derive(Debug, Default)]
+pub struct PathCache {
+    paths: HashMap<(Locator, Locator), LocatorPath>,
+}
+
+impl PathCache {
+    pub fn new() -> Self {
+        Self::default()
+    }
+
+    /// The path from `a` to `b`, computed on first use.
+    pub fn get(&mut self, a: &Locator, b: &Locator) -> LocatorPath {
+        let (key, flipped) = if a <= b {
+            ((*a, *b), false)
+        } else {
+            ((*b, *a), true)
+        };
+        let p = *self
+            .paths
+            .entry(key)
+            .or_insert_with(|| locator_path(&key.0, &key.1));
+        if flipped { p.reversed() } else { p }
+    }
+
+    /// Number of distinct pairs computed so far.
+    pub fn len(&self) -> usize {
+        self.paths.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.paths.is_empty()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn loc(s: &str) -> Locator {
+        Locator::parse(s).unwrap()
+    }
+
+    #[test]
+    fn identical_and_nested_locators_are_the_same_square() {
+        let p = locator_path(&loc("JN17ga"), &loc("JN17ga"));
+        assert!(p.same_cell());
+        assert_eq!(p.centre.bearing_deg, None);
+        assert_eq!(p.min_km, 0.0);
+        let p = locator_path(&loc("JN17"), &loc("JN17mm"));
+        assert!(p.same_cell());
+    }
+
+    #[test]
+    fn the_cache_returns_reversed_bearings_for_the_reversed_pair() {
+        let mut cache = PathCache::new();
+        let ab = cache.get(&loc("JN17ga"), &loc("IN76qi"));
+        let ba = cache.get(&loc("IN76qi"), &loc("JN17ga"));
+        assert_eq!(cache.len(), 1);
+        assert_eq!(ab.centre.bearing_deg, ba.centre.reverse_bearing_deg);
+        assert_eq!(ab.centre.distance_km, ba.centre.distance_km);
+        let direct = locator_path(&loc("IN76qi"), &loc("JN17ga"));
+        let (x, y) = (
+            direct.centre.bearing_deg.unwrap(),
+            ba.centre.bearing_deg.unwrap(),
+        );
+        assert!((x - y).abs() < 1e-9);
+    }
+
+    #[test]
+    fn a_field_is_flagged_too_coarse() {
+        assert!(locator_path(&loc("JN"), &loc("JN17ga")).too_coarse);
+    }
+}

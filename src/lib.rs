@@ -1,0 +1,8 @@
+//! nearsky: a drill logbook for NVIS emergency-communication nets.
+//!
+//! Layers, from the bottom: [`domain`] (pure types and computations); [`demo`] (the invented
+//! scenario); [`cli`] (the command line).
+
+pub mod cli;
+pub mod demo;
+pub mod domain;
