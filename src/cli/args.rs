@@ -32,6 +32,267 @@ pub enum Command {
         after_help = "Examples:\n  nearsky sun JN17ga\n  nearsky sun JN17ga --date 2026-12-21 --format json"
     )]
     Sun(SunArgs),
+    /// Log a contact or a failed attempt; it is on disk when the command returns.
+    #[command(
+        after_help = "Examples:\n  nearsky log Q4SHL --freq 7.1 --mode LSB --sent 59 --rcvd 57\n  nearsky log Q2SCH --band 80m --outcome none --note \"called 3 times\""
+    )]
+    Log(LogArgs),
+    /// Add a timestamped propagation note.
+    #[command(
+        after_help = "Example:\n  nearsky note \"40 m fading, switching to 60 m\" --band 40m"
+    )]
+    Note(NoteArgs),
+    /// List contacts, newest first.
+    #[command(after_help = "Examples:\n  nearsky list\n  nearsky list --band 40m --format csv")]
+    List(ListArgs),
+    /// Correct a contact; the previous version is kept with the reason.
+    #[command(after_help = "Example:\n  nearsky edit 3f2a --rcvd 55 --reason \"misheard report\"")]
+    Edit(EditArgs),
+    /// Delete a contact; it stays in the file, marked deleted, with the reason.
+    #[command(after_help = "Example:\n  nearsky delete 3f2a --reason \"logged twice\"")]
+    Delete(DeleteArgs),
+    /// Create, list or choose drills.
+    #[command(
+        subcommand,
+        after_help = "Examples:\n  nearsky drill new \"Autumn exercise\"\n  nearsky drill use \"Autumn exercise\""
+    )]
+    Drill(DrillCommand),
+    /// Set, move or show the own station.
+    #[command(
+        subcommand,
+        after_help = "Examples:\n  nearsky station set --call Q3NET --grid JN17ga --power 50\n  nearsky station move --grid JN17gb"
+    )]
+    Station(StationCommand),
+    /// Add or list the other stations of the net.
+    #[command(
+        subcommand,
+        after_help = "Example:\n  nearsky roster add Q4SHL --name \"Shelter 1\" --grid JN17gb"
+    )]
+    Roster(RosterCommand),
+    /// Copy the logbook to a new file (safe while logging goes on).
+    #[command(after_help = "Example:\n  nearsky backup /media/usb/drill-backup.db")]
+    Backup(BackupArgs),
+    /// Check the logbook file for damage.
+    #[command(after_help = "Example:\n  nearsky check")]
+    Check,
+    /// Internal: adds contacts in a loop for the reliability tests.
+    #[command(hide = true, name = "__writer")]
+    Writer(WriterArgs),
+}
+
+#[derive(Debug, Args)]
+pub struct LogArgs {
+    /// The other station's call sign.
+    pub call: String,
+    /// UTC time (default: now), e.g. 14:05 or 2026-12-01T14:05Z.
+    #[arg(long)]
+    pub time: Option<String>,
+    /// Frequency (7.1, 7100kHz, 5.3625MHz); the band follows from it.
+    #[arg(long, alias = "frequency")]
+    pub freq: Option<String>,
+    /// Band (80m, 60m, 40m) when no frequency is given.
+    #[arg(long)]
+    pub band: Option<String>,
+    /// Mode or submode (USB, LSB, CW, FT8, OLIVIA 8/250); default: the last one used.
+    #[arg(long)]
+    pub mode: Option<String>,
+    /// Own power in W (default: the station's usual power).
+    #[arg(long)]
+    pub power: Option<String>,
+    /// Report sent (59, 599, 5/9, -12).
+    #[arg(long)]
+    pub sent: Option<String>,
+    /// Report received.
+    #[arg(long)]
+    pub rcvd: Option<String>,
+    /// Their locator (default: from the roster).
+    #[arg(long)]
+    pub grid: Option<String>,
+    /// Their power in W, if they gave it.
+    #[arg(long)]
+    pub their_power: Option<String>,
+    /// worked, partial (one-way or incomplete) or none (called, nothing heard).
+    #[arg(long, default_value = "worked")]
+    pub outcome: String,
+    /// Station that relayed the exchange.
+    #[arg(long)]
+    pub via: Option<String>,
+    #[arg(long)]
+    pub note: Option<String>,
+    /// Minutes within which the same call, band and mode count as a possible duplicate.
+    #[arg(long, default_value_t = 10)]
+    pub dup_window: u32,
+    #[arg(long, value_enum, default_value_t)]
+    pub format: TextOrJson,
+}
+
+#[derive(Debug, Args)]
+pub struct NoteArgs {
+    /// What was observed.
+    pub text: String,
+    #[arg(long)]
+    pub band: Option<String>,
+    /// UTC time (default: now).
+    #[arg(long)]
+    pub time: Option<String>,
+}
+
+/// Output for commands that print a list.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, clap::ValueEnum)]
+pub enum ListFormat {
+    #[default]
+    Table,
+    Csv,
+    Json,
+}
+
+#[derive(Debug, Args)]
+pub struct ListArgs {
+    /// Drill name (default: the drill in use; `all` for every drill).
+    #[arg(long)]
+    pub drill: Option<String>,
+    #[arg(long)]
+    pub band: Option<String>,
+    /// Most contacts to show.
+    #[arg(long, default_value_t = 50)]
+    pub limit: usize,
+    /// Show deleted contacts too.
+    #[arg(long)]
+    pub deleted: bool,
+    #[arg(long, value_enum, default_value_t)]
+    pub format: ListFormat,
+}
+
+#[derive(Debug, Args)]
+pub struct EditArgs {
+    /// The contact's UUID (at least its first 4 characters).
+    pub id: String,
+    #[arg(long)]
+    pub call: Option<String>,
+    #[arg(long)]
+    pub time: Option<String>,
+    #[arg(long, alias = "frequency")]
+    pub freq: Option<String>,
+    #[arg(long)]
+    pub band: Option<String>,
+    #[arg(long)]
+    pub mode: Option<String>,
+    #[arg(long)]
+    pub power: Option<String>,
+    #[arg(long)]
+    pub sent: Option<String>,
+    #[arg(long)]
+    pub rcvd: Option<String>,
+    #[arg(long)]
+    pub grid: Option<String>,
+    #[arg(long)]
+    pub their_power: Option<String>,
+    #[arg(long)]
+    pub outcome: Option<String>,
+    #[arg(long)]
+    pub via: Option<String>,
+    #[arg(long)]
+    pub note: Option<String>,
+    /// Why the contact is changed (kept in the revision trail).
+    #[arg(long)]
+    pub reason: String,
+}
+
+#[derive(Debug, Args)]
+pub struct DeleteArgs {
+    /// The contact's UUID (at least its first 4 characters).
+    pub id: String,
+    /// Why the contact is deleted (kept in the revision trail).
+    #[arg(long)]
+    pub reason: String,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum DrillCommand {
+    /// Create a drill and use it.
+    New {
+        name: String,
+        /// Net control station.
+        #[arg(long)]
+        ncs: Option<String>,
+        #[arg(long)]
+        description: Option<String>,
+        /// Planned start, UTC.
+        #[arg(long)]
+        start: Option<String>,
+        /// Planned end, UTC.
+        #[arg(long)]
+        end: Option<String>,
+    },
+    /// List drills.
+    List,
+    /// Choose the drill new contacts belong to.
+    Use { name: String },
+}
+
+#[derive(Debug, Subcommand)]
+pub enum StationCommand {
+    /// Create or update the own station and use it.
+    Set {
+        #[arg(long)]
+        call: String,
+        #[arg(long)]
+        grid: String,
+        /// The operator at the key, if not the station's own call.
+        #[arg(long)]
+        operator: Option<String>,
+        /// Usual power in W.
+        #[arg(long)]
+        power: Option<String>,
+        /// Antenna, e.g. "80/40 m link dipole, links open for 40 m".
+        #[arg(long)]
+        antenna: Option<String>,
+        #[arg(long)]
+        rig: Option<String>,
+    },
+    /// Record that the station moved (portable stations do, during a drill).
+    Move {
+        #[arg(long)]
+        grid: String,
+        /// When it moved, UTC (default: now).
+        #[arg(long)]
+        time: Option<String>,
+    },
+    /// Show the station in use and where it has been.
+    Show,
+}
+
+#[derive(Debug, Subcommand)]
+pub enum RosterCommand {
+    /// Add or update a station of the net.
+    Add {
+        call: String,
+        /// Tactical name, e.g. "Shelter 2".
+        #[arg(long)]
+        name: Option<String>,
+        #[arg(long)]
+        grid: Option<String>,
+        #[arg(long)]
+        role: Option<String>,
+    },
+    /// List the roster with distance and bearing from the own station.
+    List,
+}
+
+#[derive(Debug, Args)]
+pub struct BackupArgs {
+    /// Where to write the copy (must not exist).
+    pub path: PathBuf,
+}
+
+#[derive(Debug, Args)]
+pub struct WriterArgs {
+    /// How many contacts to add (0: until killed).
+    #[arg(long, default_value_t = 0)]
+    pub count: u64,
+    /// Distinguishes concurrent writers.
+    #[arg(long, default_value = "Q1TST")]
+    pub call: String,
 }
 
 /// Output for commands that print one result.

@@ -2,6 +2,7 @@
 //! calls the same library functions the terminal UI uses.
 
 pub mod args;
+mod book;
 mod sky;
 
 use std::io::Write;
@@ -65,10 +66,22 @@ fn run(cli: Cli) -> Result<(), CliError> {
     let mut out = std::io::stdout().lock();
     // The clock is read here, at the edge, and passed in.
     let now = chrono::Utc::now();
+    let db = cli.db.as_deref();
     let result = match cli.command {
         Some(Command::Demo(a)) => crate::demo::print_summary(&mut out, &a).map_err(CliError::from),
         Some(Command::Path(a)) => sky::path(&mut out, &a, now),
         Some(Command::Sun(a)) => sky::sun(&mut out, &a, now),
+        Some(Command::Log(a)) => book::log(&mut out, db, &a, now),
+        Some(Command::Note(a)) => book::note(&mut out, db, &a, now),
+        Some(Command::List(a)) => book::list(&mut out, db, &a),
+        Some(Command::Edit(a)) => book::edit(&mut out, db, &a, now),
+        Some(Command::Delete(a)) => book::delete(&mut out, db, &a),
+        Some(Command::Drill(c)) => book::drill(&mut out, db, &c, now),
+        Some(Command::Station(c)) => book::station(&mut out, db, &c, now),
+        Some(Command::Roster(c)) => book::roster(&mut out, db, &c, now),
+        Some(Command::Backup(a)) => book::backup(&mut out, db, &a.path),
+        Some(Command::Check) => book::check(&mut out, db),
+        Some(Command::Writer(a)) => book::writer(&mut out, db, &a, now),
         None => {
             crate::demo::print_summary(&mut out, &args::DemoArgs::default()).map_err(CliError::from)
         }

@@ -1,0 +1,633 @@
+//! Contacts in the logbook: add, edit and delete with a revision trail, page, find duplicates.
+
+use chrono::{DateTime, Utc};
+use rusqlite::{OptionalExtension, Row, TransactionBehavior, params, params_from_iter};
+use uuid::Uuid;
+
+use super::{Logbook, Result, StoreError};
+use crate::domain::{
+    Band, Callsign, Contact, ContactId, ContactParts, Frequency, Locator, Mode, Origin, Outcome,
+    Power, Report, StationSnapshot,
+};
+
+/// A contact as stored, with its bookkeeping.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StoredContact {
+    pub contact: Contact,
+    /// 1 when first logged, +1 for every edit or delete.
+    pub revision: u32,
+    pub deleted: bool,
+    pub logged_at: DateTime<Utc>,
+}
+
+/// A contact that looks like the one being logged: same station worked on the same band and
+/// mode a few minutes apart. Reported, never refused.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Duplicate {
+    pub id: ContactId,
+    pub start: DateTime<Utc>,
+    pub outcome: Outcome,
+}
+
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum RevisionKind {
+    Edit,
+    Delete,
+}
+
+/// The version of a contact before an edit or delete.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Revision {
+    /// The revision number the contact had before the change.
+    pub revision: u32,
+    pub changed_at: DateTime<Utc>,
+    pub kind: RevisionKind,
+    pub reason: String,
+    pub previous: Contact,
+}
+
+/// Which contacts to page through.
+#[derive(Debug, Clone, Default)]
+pub struct ContactQuery {
+    /// Drill by name.
+    pub drill: Option<String>,
+    pub band: Option<Band>,
+    /// Start time at or after.
+    pub from: Option<DateTime<Utc>>,
+    /// Start time before.
+    pub until: Option<DateTime<Utc>>,
+    pub include_deleted: bool,
+}
+
+/// Where the next page starts (exclusive): the last contact of the previous page.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub struct Cursor {
+    start: i64,
+    row: i64,
+}
+
+const COLUMNS: &str = "c.uuid, d.name, c.own_call, c.own_operator, c.own_locator, c.own_power_w, \
+    c.own_antenna, c.call, c.locator, c.start_utc, c.end_utc, c.band, c.freq_hz, c.mode, \
+    c.submode, c.rst_sent, c.rst_rcvd, c.other_power_w, c.outcome, c.via, c.note, \
+    c.origin_station, c.origin_file, c.revision, c.deleted, c.logged_at, c.id";
+
+fn ts(t: DateTime<Utc>) -> i64 {
+    t.timestamp()
+}
+
+fn from_ts(s: i64) -> DateTime<Utc> {
+    DateTime::from_timestamp(s, 0).unwrap_or_default()
+}
+
+/// Reads one row back into a checked contact; a row that no longer validates (edited by hand,
+/// or damaged) is reported with its UUID and the field.
+fn read_row(
+    r: &Row<'_>,
+) -> rusqlite::Result<std::result::Result<(StoredContact, i64), StoreError>> {
+    let uuid: String = r.get(0)?;
+    let bad = |why: String| StoreError::BadRow {
+        uuid: uuid.clone(),
+        why,
+    };
+    macro_rules! parse {
+        ($idx:expr, $name:literal, $f:expr) => {{
+            let v: Option<String> = r.get($idx)?;
+            match v.as_deref().map($f).transpose() {
+                Ok(x) => x,
+                Err(e) => return Ok(Err(bad(format!("{}: {}", $name, e)))),
+            }
+        }};
+    }
+    let id = match Uuid::parse_str(&uuid) {
+        Ok(u) => ContactId(u),
+        Err(e) => return Ok(Err(bad(format!("uuid: {e}")))),
+    };
+    let drill: Option<String> = r.get(1)?;
+    let own_call = parse!(2, "own call", Callsign::parse);
+    let own_operator = parse!(3, "operator", Callsign::parse);
+    let own_locator = parse!(4, "own locator", Locator::parse);
+    let own_power: Option<f64> = r.get(5)?;
+    let own_antenna: Option<String> = r.get(6)?;
+    let call = parse!(7, "call", Callsign::parse);
+    let locator = parse!(8, "locator", Locator::parse);
+    let start: i64 = r.get(9)?;
+    let end: Option<i64> = r.get(10)?;
+    let band = parse!(11, "band", Band::parse);
+    let freq: Option<i64> = r.get(12)?;
+    let mode_text: String = r.get(13)?;
+    let submode: Option<String> = r.get(14)?;
+    let sent = parse!(15, "report sent", Report::parse);
+    let rcvd = parse!(16, "report received", Report::parse);
+    let other_power: Option<f64> = r.get(17)?;
+    let outcome = parse!(18, "outcome", Outcome::parse);
+    let via = parse!(19, "via", Callsign::parse);
+    let note: String = r.get(20)?;
+    let origin_station = parse!(21, "origin station", Callsign::parse);
+    let origin_file: Option<String> = r.get(22)?;
+    let revision: i64 = r.get(23)?;
+    let deleted: bool = r.get(24)?;
+    let logged_at: i64 = r.get(25)?;
+    let row_id: i64 = r.get(26)?;
+    let mode = match Mode::new(&mode_text, submode.as_deref()) {
+        Ok(m) => m,
+        Err(e) => return Ok(Err(bad(format!("mode: {e}")))),
+    };
+    let power = |w: Option<f64>, name: &str| match w.map(Power::from_watts).transpose() {
+        Ok(p) => Ok(p),
+        Err(e) => Err(bad(format!("{name}: {e}"))),
+    };
+    let (own_power, other_power) = match (
+        power(own_power, "own power"),
+        power(other_power, "their power"),
+    ) {
+        (Ok(a), Ok(b)) => (a, b),
+        (Err(e), _) | (_, Err(e)) => return Ok(Err(e)),
+    };
+    let frequency = match freq
+        .map(|f| Frequency::from_hz(f.max(0) as u64))
+        .transpose()
+    {
+        Ok(f) => f,
+        Err(e) => return Ok(Err(bad(format!("frequency: {e}")))),
+    };
+    let (Some(own_call), Some(call), Some(band), Some(outcome)) = (own_call, call, band, outcome)
+    else {
+        return Ok(Err(bad("a required column is empty".into())));
+    };
+    let origin = match origin_station {
+        None => Origin::LoggedHere,
+        Some(station) => Origin::Imported {
+            station,
+            file: origin_file.unwrap_or_default(),
+        },
+    };
+    let parts = ContactParts {
+        id,
+        drill,
+        own: StationSnapshot {
+            call: own_call,
+            operator: own_operator,
+            locator: own_locator,
+            power: own_power,
+            antenna: own_antenna,
+        },
+        call,
+        locator,
+        start: from_ts(start),
+        end: end.map(from_ts),
+        band,
+        frequency,
+        mode,
+        sent,
+        rcvd,
+        other_power,
+        outcome,
+        via,
+        note,
+        origin,
+    };
+    Ok(match Contact::new(parts) {
+        Ok(contact) => Ok((
+            StoredContact {
+                contact,
+                revision: revision.max(0) as u32,
+                deleted,
+                logged_at: from_ts(logged_at),
+            },
+            row_id,
+        )),
+        Err(e) => Err(bad(e.to_string())),
+    })
+}
+
+fn snapshot_json(c: &Contact) -> Result<String> {
+    serde_json::to_string(c)
+        .map_err(|e| StoreError::Invalid(format!("cannot record the previous version: {e}")))
+}
+
+impl Logbook {
+    fn drill_id(tx: &rusqlite::Connection, name: &Option<String>) -> Result<Option<i64>> {
+        let Some(name) = name else { return Ok(None) };
+        let id: Option<i64> = tx
+            .query_row("SELECT id FROM drill WHERE name = ?1", [name], |r| r.get(0))
+            .optional()?;
+        id.map(Some).ok_or_else(|| StoreError::NotFound {
+            what: "drill",
+            key: name.clone(),
+        })
+    }
+
+    fn duplicates_in(
+        conn: &rusqlite::Connection,
+        c: &Contact,
+        window_minutes: u32,
+    ) -> Result<Vec<Duplicate>> {
+        let w = i64::from(window_minutes) * 60;
+        let start = ts(c.start);
+        let mut stmt = conn.prepare_cached(
+            "SELECT uuid, start_utc, outcome FROM contact
+             WHERE call = ?1 AND band = ?2 AND mode = ?3 AND start_utc BETWEEN ?4 AND ?5
+               AND own_call = ?6 AND deleted = 0 AND uuid <> ?7
+             ORDER BY start_utc",
+        )?;
+        let rows = stmt.query_map(
+            params![
+                c.call.as_str(),
+                c.band.name(),
+                c.mode.mode(),
+                start - w,
+                start + w,
+                c.own.call.as_str(),
+                c.id.to_string()
+            ],
+            |r| {
+                Ok((
+                    r.get::<_, String>(0)?,
+                    r.get::<_, i64>(1)?,
+                    r.get::<_, String>(2)?,
+                ))
+            },
+        )?;
+        let mut out = Vec::new();
+        for row in rows {
+            let (u, s, o) = row?;
+            if let (Ok(u), Ok(o)) = (Uuid::parse_str(&u), Outcome::parse(&o)) {
+                out.push(Duplicate {
+                    id: ContactId(u),
+                    start: from_ts(s),
+                    outcome: o,
+                });
+            }
+        }
+        Ok(out)
+    }
+
+    /// Contacts that look like `c` within `window_minutes` (same own call, other call, band
+    /// and mode).
+    pub fn duplicates(&self, c: &Contact, window_minutes: u32) -> Result<Vec<Duplicate>> {
+        Self::duplicates_in(&self.conn, c, window_minutes)
+    }
+
+    /// Stores a contact. When this returns `Ok`, the contact is on disk. Possible duplicates
+    /// within `window_minutes` are returned for the caller to show; the contact is stored all
+    /// the same. A contact whose UUID is already stored is refused.
+    pub fn add_contact(&mut self, c: &Contact, window_minutes: u32) -> Result<Vec<Duplicate>> {
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)?;
+        let dups = Self::duplicates_in(&tx, c, window_minutes)?;
+        Self::insert(&tx, c, chrono::Utc::now())?;
+        tx.commit()?;
+        Ok(dups)
+    }
+
+    /// Stores many contacts in one transaction: all of them, or (on any error) none.
+    pub fn add_contacts(&mut self, contacts: &[Contact]) -> Result<usize> {
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)?;
+        let now = chrono::Utc::now();
+        for c in contacts {
+            Self::insert(&tx, c, now)?;
+        }
+        tx.commit()?;
+        Ok(contacts.len())
+    }
+
+    pub(super) fn insert(
+        tx: &rusqlite::Connection,
+        c: &Contact,
+        logged_at: DateTime<Utc>,
+    ) -> Result<()> {
+        let drill = Self::drill_id(tx, &c.drill)?;
+        let (origin_station, origin_file) = match &c.origin {
+            Origin::LoggedHere => (None, None),
+            Origin::Imported { station, file } => (Some(station.as_str()), Some(file.as_str())),
+        };
+        let mut stmt = tx.prepare_cached(
+            "INSERT INTO contact (uuid, drill_id, own_call, own_operator, own_locator, own_power_w,
+                own_antenna, call, locator, start_utc, end_utc, band, freq_hz, mode, submode,
+                rst_sent, rst_rcvd, other_power_w, outcome, via, note, origin_station, origin_file,
+                revision, deleted, logged_at)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17,
+                ?18, ?19, ?20, ?21, ?22, ?23, 1, 0, ?24)",
+        )?;
+        let r = stmt.execute(params![
+            c.id.to_string(),
+            drill,
+            c.own.call.as_str(),
+            c.own.operator.as_ref().map(Callsign::as_str),
+            c.own.locator.as_ref().map(Locator::as_str),
+            c.own.power.map(Power::watts),
+            c.own.antenna.as_deref(),
+            c.call.as_str(),
+            c.locator.as_ref().map(Locator::as_str),
+            ts(c.start),
+            c.end.map(ts),
+            c.band.name(),
+            c.frequency.map(|f| f.hz() as i64),
+            c.mode.mode(),
+            c.mode.submode(),
+            c.sent.map(|r| r.to_string()),
+            c.rcvd.map(|r| r.to_string()),
+            c.other_power.map(Power::watts),
+            c.outcome.key(),
+            c.via.as_ref().map(Callsign::as_str),
+            c.note.as_str(),
+            origin_station,
+            origin_file,
+            ts(logged_at),
+        ]);
+        match r {
+            Err(e) if e.sqlite_error_code() == Some(rusqlite::ErrorCode::ConstraintViolation) => {
+                Err(StoreError::Invalid(format!(
+                    "contact {} is already in the logbook",
+                    c.id
+                )))
+            }
+            other => other.map(|_| ()).map_err(StoreError::from),
+        }
+    }
+
+    /// One contact by id, deleted or not.
+    pub fn contact(&self, id: ContactId) -> Result<StoredContact> {
+        let sql = format!(
+            "SELECT {COLUMNS} FROM contact c LEFT JOIN drill d ON d.id = c.drill_id WHERE c.uuid = ?1"
+        );
+        let found = self
+            .conn
+            .query_row(&sql, [id.to_string()], read_row)
+            .optional()?;
+        match found {
+            None => Err(StoreError::NotFound {
+                what: "contact",
+                key: id.to_string(),
+            }),
+            Some(r) => r.map(|(c, _)| c),
+        }
+    }
+
+    /// Finds a contact by the start of its UUID (at least 4 characters, as typed).
+    pub fn find_contact(&self, prefix: &str) -> Result<StoredContact> {
+        let p = prefix.trim().to_ascii_lowercase();
+        if p.len() < 4 || !p.chars().all(|c| c.is_ascii_hexdigit() || c == '-') {
+            return Err(StoreError::Invalid(format!(
+                "contact id `{prefix}`: give at least 4 characters of its UUID"
+            )));
+        }
+        let mut stmt = self
+            .conn
+            .prepare("SELECT uuid FROM contact WHERE uuid LIKE ?1 || '%' LIMIT 2")?;
+        let ids: Vec<String> = stmt
+            .query_map([&p], |r| r.get(0))?
+            .collect::<rusqlite::Result<_>>()?;
+        match ids.as_slice() {
+            [one] => {
+                let u = Uuid::parse_str(one).map_err(|e| StoreError::Invalid(e.to_string()))?;
+                self.contact(ContactId(u))
+            }
+            [] => Err(StoreError::NotFound {
+                what: "contact",
+                key: prefix.to_string(),
+            }),
+            _ => Err(StoreError::Invalid(format!(
+                "contact id `{prefix}` matches more than one contact; give more of it"
+            ))),
+        }
+    }
+
+    /// A page of contacts, newest first, starting after `after` (from the previous page).
+    /// Uses the time indexes: the cost depends on the page size, not on the log's size.
+    pub fn page(
+        &self,
+        q: &ContactQuery,
+        limit: usize,
+        after: Option<Cursor>,
+    ) -> Result<(Vec<StoredContact>, Option<Cursor>)> {
+        let mut sql = format!(
+            "SELECT {COLUMNS} FROM contact c LEFT JOIN drill d ON d.id = c.drill_id WHERE 1 = 1"
+        );
+        let mut values: Vec<rusqlite::types::Value> = Vec::new();
+        let mut bind = |sql: &mut String, clause: &str, v: rusqlite::types::Value| {
+            values.push(v);
+            sql.push_str(&clause.replace('?', &format!("?{}", values.len())));
+        };
+        if let Some(d) = &q.drill {
+            bind(
+                &mut sql,
+                " AND c.drill_id = (SELECT id FROM drill WHERE name = ?)",
+                d.clone().into(),
+            );
+        }
+        if let Some(b) = q.band {
+            bind(&mut sql, " AND c.band = ?", b.name().to_string().into());
+        }
+        if let Some(f) = q.from {
+            bind(&mut sql, " AND c.start_utc >= ?", ts(f).into());
+        }
+        if let Some(u) = q.until {
+            bind(&mut sql, " AND c.start_utc < ?", ts(u).into());
+        }
+        if !q.include_deleted {
+            sql.push_str(" AND c.deleted = 0");
+        }
+        if let Some(cur) = after {
+            bind(&mut sql, " AND (c.start_utc < ?", cur.start.into());
+            bind(&mut sql, " OR (c.start_utc = ? ", cur.start.into());
+            bind(&mut sql, "AND c.id < ?))", cur.row.into());
+        }
+        bind(
+            &mut sql,
+            " ORDER BY c.start_utc DESC, c.id DESC LIMIT ?",
+            (limit as i64).into(),
+        );
+        let mut stmt = self.conn.prepare_cached(&sql)?;
+        let rows = stmt.query_map(params_from_iter(values.iter()), read_row)?;
+        let mut out = Vec::with_capacity(limit);
+        let mut last = None;
+        for r in rows {
+            let (c, row) = r??;
+            last = Some(Cursor {
+                start: ts(c.contact.start),
+                row,
+            });
+            out.push(c);
+        }
+        let next = if out.len() == limit { last } else { None };
+        Ok((out, next))
+    }
+
+    /// How many contacts match (deleted ones only when asked).
+    pub fn count(&self, q: &ContactQuery) -> Result<u64> {
+        let mut n = 0u64;
+        let mut cursor = None;
+        // Counting through pages keeps one code path for the filters; it is used for status
+        // figures, on logs of drill size.
+        loop {
+            let (page, next) = self.page(q, 10_000, cursor)?;
+            n += page.len() as u64;
+            match next {
+                Some(c) => cursor = Some(c),
+                None => return Ok(n),
+            }
+        }
+    }
+
+    fn require_reason(reason: &str) -> Result<&str> {
+        let r = reason.trim();
+        if r.is_empty() {
+            return Err(StoreError::Invalid(
+                "a reason is required for every edit and delete".into(),
+            ));
+        }
+        Ok(r)
+    }
+
+    fn keep_revision(
+        tx: &rusqlite::Connection,
+        current: &StoredContact,
+        kind: &str,
+        reason: &str,
+    ) -> Result<i64> {
+        let row: i64 = tx.query_row(
+            "SELECT id FROM contact WHERE uuid = ?1",
+            [current.contact.id.to_string()],
+            |r| r.get(0),
+        )?;
+        tx.execute(
+            "INSERT INTO contact_revision (contact_id, revision, changed_at, kind, reason, previous)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
+            params![row, current.revision, ts(chrono::Utc::now()), kind, reason, snapshot_json(&current.contact)?],
+        )?;
+        Ok(row)
+    }
+
+    /// Replaces a contact (same id) with `updated`, keeping the previous version with the
+    /// reason. Deleted contacts cannot be edited.
+    pub fn edit_contact(&mut self, updated: &Contact, reason: &str) -> Result<()> {
+        let reason = Self::require_reason(reason)?;
+        let current = self.contact(updated.id)?;
+        if current.deleted {
+            return Err(StoreError::Invalid(format!(
+                "contact {} was deleted; it cannot be edited",
+                updated.id
+            )));
+        }
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)?;
+        let row = Self::keep_revision(&tx, &current, "edit", reason)?;
+        let logged_at = current.logged_at;
+        // Rewrite every column in place (the row id, and so the revision trail, stays).
+        let drill = Self::drill_id(&tx, &updated.drill)?;
+        let c = updated;
+        tx.execute(
+            "UPDATE contact SET drill_id = ?2, own_call = ?3, own_operator = ?4, own_locator = ?5,
+                own_power_w = ?6, own_antenna = ?7, call = ?8, locator = ?9, start_utc = ?10,
+                end_utc = ?11, band = ?12, freq_hz = ?13, mode = ?14, submode = ?15, rst_sent = ?16,
+                rst_rcvd = ?17, other_power_w = ?18, outcome = ?19, via = ?20, note = ?21,
+                revision = revision + 1, logged_at = ?22
+             WHERE id = ?1",
+            params![
+                row,
+                drill,
+                c.own.call.as_str(),
+                c.own.operator.as_ref().map(Callsign::as_str),
+                c.own.locator.as_ref().map(Locator::as_str),
+                c.own.power.map(Power::watts),
+                c.own.antenna.as_deref(),
+                c.call.as_str(),
+                c.locator.as_ref().map(Locator::as_str),
+                ts(c.start),
+                c.end.map(ts),
+                c.band.name(),
+                c.frequency.map(|f| f.hz() as i64),
+                c.mode.mode(),
+                c.mode.submode(),
+                c.sent.map(|r| r.to_string()),
+                c.rcvd.map(|r| r.to_string()),
+                c.other_power.map(Power::watts),
+                c.outcome.key(),
+                c.via.as_ref().map(Callsign::as_str),
+                c.note.as_str(),
+                ts(logged_at),
+            ],
+        )?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    /// Marks a contact deleted (it stays in the file), keeping the version and the reason.
+    pub fn delete_contact(&mut self, id: ContactId, reason: &str) -> Result<()> {
+        let reason = Self::require_reason(reason)?;
+        let current = self.contact(id)?;
+        if current.deleted {
+            return Err(StoreError::Invalid(format!(
+                "contact {id} is already deleted"
+            )));
+        }
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)?;
+        let row = Self::keep_revision(&tx, &current, "delete", reason)?;
+        tx.execute(
+            "UPDATE contact SET deleted = 1, revision = revision + 1 WHERE id = ?1",
+            [row],
+        )?;
+        tx.commit()?;
+        Ok(())
+    }
+
+    /// The earlier versions of a contact, oldest first.
+    pub fn revisions(&self, id: ContactId) -> Result<Vec<Revision>> {
+        let mut stmt = self.conn.prepare(
+            "SELECT r.revision, r.changed_at, r.kind, r.reason, r.previous FROM contact_revision r
+             JOIN contact c ON c.id = r.contact_id WHERE c.uuid = ?1 ORDER BY r.revision",
+        )?;
+        let rows = stmt.query_map([id.to_string()], |r| {
+            Ok((
+                r.get::<_, i64>(0)?,
+                r.get::<_, i64>(1)?,
+                r.get::<_, String>(2)?,
+                r.get::<_, String>(3)?,
+                r.get::<_, String>(4)?,
+            ))
+        })?;
+        let mut out = Vec::new();
+        for row in rows {
+            let (rev, at, kind, reason, prev) = row?;
+            let previous: Contact =
+                serde_json::from_str(&prev).map_err(|e| StoreError::BadRow {
+                    uuid: id.to_string(),
+                    why: format!("revision {rev}: {e}"),
+                })?;
+            let kind = if kind == "delete" {
+                RevisionKind::Delete
+            } else {
+                RevisionKind::Edit
+            };
+            out.push(Revision {
+                revision: rev.max(0) as u32,
+                changed_at: from_ts(at),
+                kind,
+                reason,
+                previous,
+            });
+        }
+        Ok(out)
+    }
+
+    /// Every stored contact that no longer validates, as messages.
+    pub(super) fn check_contacts(&self) -> Result<Vec<String>> {
+        let sql = format!("SELECT {COLUMNS} FROM contact c LEFT JOIN drill d ON d.id = c.drill_id");
+        let mut stmt = self.conn.prepare(&sql)?;
+        let rows = stmt.query_map([], read_row)?;
+        let mut problems = Vec::new();
+        for r in rows {
+            if let Err(e) = r? {
+                problems.push(e.to_string());
+            }
+        }
+        Ok(problems)
+    }
+}
