@@ -303,6 +303,19 @@ fn logbooks_of_every_earlier_schema_open_and_keep_their_records() {
         );
         assert_eq!(book.roster().unwrap().len(), 2);
         assert_eq!(book.notes(None).unwrap().len(), 1);
+        if version >= 2 {
+            let slots = book.schedule("Fixture drill").unwrap();
+            assert_eq!(slots.len(), 1);
+            assert_eq!(slots[0].primary, Some(nearsky::domain::Band::B40m));
+        }
+        let edited = rows
+            .iter()
+            .find(|r| r.revision == 2)
+            .expect("the edited contact");
+        assert_eq!(
+            book.revisions(edited.contact.id).unwrap()[0].reason,
+            "note added after the net"
+        );
         if version < nearsky::store::SCHEMA_VERSION {
             assert!(
                 dir.path()

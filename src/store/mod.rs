@@ -20,13 +20,16 @@ use std::time::Duration;
 use rusqlite::{Connection, ErrorCode, OpenFlags, TransactionBehavior};
 
 pub use contacts::{ContactQuery, Cursor, Duplicate, Revision, RevisionKind, StoredContact};
-pub use registry::{Channel, Drill, Note, RosterEntry, StationProfile};
+pub use registry::{Channel, Drill, Note, RosterEntry, ScheduleSlot, StationProfile};
 
 /// `PRAGMA application_id` of a nearsky logbook: "NSKY" in ASCII.
 pub const APPLICATION_ID: i32 = 0x4E53_4B59;
 
 /// The migrations, in order. Schema version N is reached by applying the first N.
-const MIGRATIONS: [&str; 1] = [include_str!("migrations/0001_init.sql")];
+const MIGRATIONS: [&str; 2] = [
+    include_str!("migrations/0001_init.sql"),
+    include_str!("migrations/0002_schedule.sql"),
+];
 
 /// The schema version this build writes.
 pub const SCHEMA_VERSION: i32 = MIGRATIONS.len() as i32;
@@ -417,5 +420,49 @@ mod tests {
         assert_eq!(sync, 2, "FULL");
         drop(book);
         assert!(Logbook::open(&path).is_ok(), "reopens");
+    }
+
+    #[test]
+    fn schedules_replace_and_cover_minutes_across_midnight() {
+        use crate::domain::Band;
+        let mut book = Logbook::open_in_memory().unwrap();
+        let d = Drill {
+            name: "d".into(),
+            starts_at: None,
+            ends_at: None,
+            net_control: None,
+            description: String::new(),
+        };
+        book.add_drill(&d).unwrap();
+        let slot = |start, primary| ScheduleSlot {
+            start_minute: start,
+            minutes: 120,
+            primary,
+            alternate: None,
+            note: String::new(),
+        };
+        book.set_schedule(
+            "d",
+            &[slot(1380, Some(Band::B80m)), slot(600, Some(Band::B40m))],
+        )
+        .unwrap();
+        let s = book.schedule("d").unwrap();
+        assert_eq!(s.len(), 2);
+        assert_eq!(s[0].start_minute, 600);
+        assert!(s[1].covers(1430) && s[1].covers(30) && !s[1].covers(60));
+        assert!(s[0].covers(600) && !s[0].covers(720));
+        let e = book.set_schedule("d", &[slot(1500, None)]).unwrap_err();
+        assert!(e.to_string().contains("minute 1500"), "{e}");
+        assert_eq!(
+            book.schedule("d").unwrap().len(),
+            2,
+            "a refused schedule changes nothing"
+        );
+        assert!(
+            book.set_schedule("nope", &[])
+                .unwrap_err()
+                .to_string()
+                .contains("drill `nope` not found")
+        );
     }
 }

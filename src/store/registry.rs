@@ -62,6 +62,26 @@ pub struct Note {
     pub text: String,
 }
 
+/// One slot of a drill's band schedule: from `start_minute` (UTC, minutes after midnight) for
+/// `minutes`, the band to use first and the one to fall back to.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScheduleSlot {
+    pub start_minute: u16,
+    pub minutes: u16,
+    pub primary: Option<Band>,
+    pub alternate: Option<Band>,
+    pub note: String,
+}
+
+impl ScheduleSlot {
+    /// Whether the slot covers a minute of the UTC day (slots may run past midnight).
+    pub fn covers(&self, minute_of_day: u16) -> bool {
+        let end = u32::from(self.start_minute) + u32::from(self.minutes);
+        let m = u32::from(minute_of_day);
+        (u32::from(self.start_minute)..end).contains(&m) || (end > 1440 && m < end - 1440)
+    }
+}
+
 fn ts(t: DateTime<Utc>) -> i64 {
     t.timestamp()
 }
@@ -156,6 +176,73 @@ impl Logbook {
     /// The drill in use, if any.
     pub fn current_drill(&self) -> Result<Option<String>> {
         self.setting(CURRENT_DRILL)
+    }
+
+    /// Replaces a drill's band schedule.
+    pub fn set_schedule(&mut self, drill: &str, slots: &[ScheduleSlot]) -> Result<()> {
+        for s in slots {
+            if s.start_minute >= 1440 || s.minutes == 0 {
+                return Err(StoreError::Invalid(format!(
+                    "schedule slot at minute {} for {} minutes is outside one UTC day",
+                    s.start_minute, s.minutes
+                )));
+            }
+        }
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)?;
+        let id: Option<i64> = tx
+            .query_row("SELECT id FROM drill WHERE name = ?1", [drill], |r| {
+                r.get(0)
+            })
+            .optional()?;
+        let id = id.ok_or_else(|| StoreError::NotFound {
+            what: "drill",
+            key: drill.to_string(),
+        })?;
+        tx.execute("DELETE FROM schedule_slot WHERE drill_id = ?1", [id])?;
+        for s in slots {
+            tx.execute(
+                "INSERT INTO schedule_slot (drill_id, start_minute, minutes, primary_band, alternate_band, note)
+                 VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
+                params![id, s.start_minute, s.minutes, s.primary.map(Band::name), s.alternate.map(Band::name), s.note],
+            )?;
+        }
+        tx.commit()?;
+        Ok(())
+    }
+
+    /// A drill's band schedule, in time order.
+    pub fn schedule(&self, drill: &str) -> Result<Vec<ScheduleSlot>> {
+        let mut stmt = self.conn.prepare(
+            "SELECT s.start_minute, s.minutes, s.primary_band, s.alternate_band, s.note FROM schedule_slot s
+             JOIN drill d ON d.id = s.drill_id WHERE d.name = ?1 ORDER BY s.start_minute",
+        )?;
+        let rows = stmt.query_map([drill], |r| {
+            Ok((
+                r.get::<_, u16>(0)?,
+                r.get::<_, u16>(1)?,
+                r.get::<_, Option<String>>(2)?,
+                r.get::<_, Option<String>>(3)?,
+                r.get::<_, String>(4)?,
+            ))
+        })?;
+        let mut out = Vec::new();
+        for row in rows {
+            let (start_minute, minutes, p, a, note) = row?;
+            let band = |b: Option<String>| {
+                b.map(|b| Band::parse(&b).map_err(|e| bad("schedule band", &b, e)))
+                    .transpose()
+            };
+            out.push(ScheduleSlot {
+                start_minute,
+                minutes,
+                primary: band(p)?,
+                alternate: band(a)?,
+                note,
+            });
+        }
+        Ok(out)
     }
 
     // ----- own stations -----
