@@ -3,7 +3,9 @@
 //! Layers, from the bottom: [`domain`] (pure types and computations); [`demo`] (the invented
 //! scenario); [`cli`] (the command line).
 
+pub mod app;
 pub mod cli;
 pub mod demo;
 pub mod domain;
+pub mod formats;
 pub mod store;

@@ -75,6 +75,16 @@ pub enum Command {
     /// Check the logbook file for damage.
     #[command(after_help = "Example:\n  nearsky check")]
     Check,
+    /// Merge other stations' ADIF files (ADI or ADX) into the logbook.
+    #[command(
+        after_help = "Examples:\n  nearsky import shelter1.adi hospital.adx\n  nearsky import q4shl.adi --station Q4SHL --drill \"Autumn exercise\" --dry-run"
+    )]
+    Import(ImportArgs),
+    /// Write contacts as ADIF (ADI, ADX) or CSV for a main station log or a spreadsheet.
+    #[command(
+        after_help = "Examples:\n  nearsky export -o drill.adi\n  nearsky export --format csv --include-attempts -o drill.csv"
+    )]
+    Export(ExportArgs),
     /// Internal: adds contacts in a loop for the reliability tests.
     #[command(hide = true, name = "__writer")]
     Writer(WriterArgs),
@@ -283,6 +293,51 @@ pub enum RosterCommand {
 pub struct BackupArgs {
     /// Where to write the copy (must not exist).
     pub path: PathBuf,
+}
+
+#[derive(Debug, Args)]
+pub struct ImportArgs {
+    /// ADIF files (.adi, or .adx/.xml for ADX).
+    #[arg(required = true)]
+    pub files: Vec<PathBuf>,
+    /// The station that logged the records, for files without STATION_CALLSIGN/OPERATOR.
+    #[arg(long)]
+    pub station: Option<String>,
+    /// Put the records in this drill (created if missing).
+    #[arg(long)]
+    pub drill: Option<String>,
+    /// Check everything and report, but store nothing.
+    #[arg(long)]
+    pub dry_run: bool,
+    /// Import the good records of a file that has bad ones, listing the bad ones.
+    #[arg(long)]
+    pub skip_bad: bool,
+}
+
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, clap::ValueEnum)]
+pub enum ExportFormatArg {
+    #[default]
+    Adi,
+    Adx,
+    Csv,
+}
+
+#[derive(Debug, Args)]
+pub struct ExportArgs {
+    #[arg(long, value_enum, default_value_t)]
+    pub format: ExportFormatArg,
+    /// Only this drill (default: every drill).
+    #[arg(long)]
+    pub drill: Option<String>,
+    /// Also export failed attempts (marked QSO_COMPLETE NIL and APP_NEARSKY_OUTCOME none).
+    #[arg(long)]
+    pub include_attempts: bool,
+    /// Output file (default: standard output).
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    pub output: Option<PathBuf>,
+    /// Overwrite an existing output file.
+    #[arg(long)]
+    pub force: bool,
 }
 
 #[derive(Debug, Args)]

@@ -286,14 +286,6 @@ pub fn note(
     Ok(())
 }
 
-fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n', '\r']) {
-        format!("\"{}\"", s.replace('"', "\"\""))
-    } else {
-        s.to_string()
-    }
-}
-
 pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(), CliError> {
     let book = open(db)?;
     let drill = match a.drill.as_deref() {
@@ -323,31 +315,11 @@ pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(),
             writeln!(out, "{}", serde_json::Value::Array(v)).map_err(io)?;
         }
         ListFormat::Csv => {
-            writeln!(out, "id,start_utc,own_call,call,locator,band,freq_hz,mode,submode,rst_sent,rst_rcvd,outcome,distance_km,bearing_deg,via,note,deleted").map_err(io)?;
+            let mut paths = crate::domain::geo::PathCache::new();
+            crate::formats::csv::write_header(out).map_err(io)?;
             for r in &rows {
-                let c = &r.contact;
-                let (km, brg) = distance_bearing(c);
-                let line = [
-                    c.id.to_string(),
-                    rfc3339(c.start),
-                    c.own.call.to_string(),
-                    c.call.to_string(),
-                    c.locator.map(|l| l.to_string()).unwrap_or_default(),
-                    c.band.to_string(),
-                    c.frequency.map(|f| f.hz().to_string()).unwrap_or_default(),
-                    c.mode.mode().to_string(),
-                    c.mode.submode().unwrap_or_default().to_string(),
-                    c.sent.map(|x| x.to_string()).unwrap_or_default(),
-                    c.rcvd.map(|x| x.to_string()).unwrap_or_default(),
-                    c.outcome.key().to_string(),
-                    km.map(|d| format!("{d:.1}")).unwrap_or_default(),
-                    brg.map(|b| format!("{b:.0}")).unwrap_or_default(),
-                    c.via.as_ref().map(|v| v.to_string()).unwrap_or_default(),
-                    c.note.clone(),
-                    r.deleted.to_string(),
-                ];
-                let line: Vec<String> = line.iter().map(|f| csv_field(f)).collect();
-                writeln!(out, "{}", line.join(",")).map_err(io)?;
+                crate::formats::csv::write_row(out, &r.contact, r.deleted, &mut paths)
+                    .map_err(io)?;
             }
         }
         ListFormat::Table => {

@@ -2,8 +2,9 @@
 //! calls the same library functions the terminal UI uses.
 
 pub mod args;
-mod book;
+pub(crate) mod book;
 mod sky;
+mod transfer;
 
 use std::io::Write;
 use std::process::ExitCode;
@@ -17,6 +18,8 @@ pub mod exit {
     pub const OK: u8 = 0;
     pub const FAILURE: u8 = 1;
     pub const USAGE: u8 = 2;
+    /// `nearsky import`: some records were rejected (with `--skip-bad` the rest was imported).
+    pub const REJECTED: u8 = 3;
 }
 
 /// An error that ends a command, with the exit code it maps to.
@@ -28,6 +31,9 @@ pub enum CliError {
     /// Anything else that failed: exit code 1.
     #[error(transparent)]
     Failure(#[from] anyhow::Error),
+    /// The command did its work but some input was rejected: exit code 3.
+    #[error("some records were rejected (listed above)")]
+    Rejected,
 }
 
 impl CliError {
@@ -35,6 +41,7 @@ impl CliError {
         match self {
             Self::Usage(_) => exit::USAGE,
             Self::Failure(_) => exit::FAILURE,
+            Self::Rejected => exit::REJECTED,
         }
     }
 }
@@ -82,6 +89,12 @@ fn run(cli: Cli) -> Result<(), CliError> {
         Some(Command::Backup(a)) => book::backup(&mut out, db, &a.path),
         Some(Command::Check) => book::check(&mut out, db),
         Some(Command::Writer(a)) => book::writer(&mut out, db, &a, now),
+        Some(Command::Import(a)) => match transfer::import(&mut out, db, &a) {
+            Ok(true) => Err(CliError::Rejected),
+            Ok(false) => Ok(()),
+            Err(e) => Err(e),
+        },
+        Some(Command::Export(a)) => transfer::export(&mut out, db, &a, now),
         None => {
             crate::demo::print_summary(&mut out, &args::DemoArgs::default()).map_err(CliError::from)
         }

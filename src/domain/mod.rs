@@ -28,3 +28,4 @@ pub use utc::{TimeError, parse_utc};
 pub mod geo;
 pub mod skywave;
 pub mod sun;
+pub mod text;

@@ -200,6 +200,58 @@ fn read_row(
     })
 }
 
+/// An import in progress: one transaction.
+pub struct Import<'a> {
+    tx: rusqlite::Transaction<'a>,
+    now: DateTime<Utc>,
+}
+
+impl Import<'_> {
+    /// Whether the logbook (or this import so far) already holds the contact: the same UUID,
+    /// or the same logging station, other call, band and mode within a minute.
+    pub fn is_known(&self, c: &Contact) -> Result<bool> {
+        let mut by_id = self
+            .tx
+            .prepare_cached("SELECT 1 FROM contact WHERE uuid = ?1")?;
+        if by_id.exists([c.id.to_string()])? {
+            return Ok(true);
+        }
+        let mut by_key = self.tx.prepare_cached(
+            "SELECT 1 FROM contact WHERE call = ?1 AND band = ?2 AND mode = ?3
+               AND start_utc BETWEEN ?4 AND ?5 AND own_call = ?6 AND deleted = 0",
+        )?;
+        let t = ts(c.start);
+        Ok(by_key.exists(params![
+            c.call.as_str(),
+            c.band.name(),
+            c.mode.mode(),
+            t - 60,
+            t + 60,
+            c.own.call.as_str()
+        ])?)
+    }
+
+    /// Creates the drill if the logbook does not have it yet.
+    pub fn ensure_drill(&self, name: &str) -> Result<()> {
+        self.tx.execute(
+            "INSERT INTO drill (name, description, created_at) SELECT ?1, 'created by an import', ?2
+             WHERE NOT EXISTS (SELECT 1 FROM drill WHERE name = ?1)",
+            params![name, ts(self.now)],
+        )?;
+        Ok(())
+    }
+
+    pub fn insert(&self, c: &Contact) -> Result<()> {
+        Logbook::insert(&self.tx, c, self.now)
+    }
+
+    /// Stores everything inserted; dropping the import instead stores nothing.
+    pub fn commit(self) -> Result<()> {
+        self.tx.commit()?;
+        Ok(())
+    }
+}
+
 fn snapshot_json(c: &Contact) -> Result<String> {
     serde_json::to_string(c)
         .map_err(|e| StoreError::Invalid(format!("cannot record the previous version: {e}")))
@@ -347,6 +399,48 @@ impl Logbook {
             }
             other => other.map(|_| ()).map_err(StoreError::from),
         }
+    }
+
+    /// Calls `f` for every contact that matches, oldest first, streaming (for exports).
+    pub fn for_each_contact(
+        &self,
+        q: &ContactQuery,
+        mut f: impl FnMut(&StoredContact) -> Result<()>,
+    ) -> Result<()> {
+        let sql = format!(
+            "SELECT {COLUMNS} FROM contact c LEFT JOIN drill d ON d.id = c.drill_id
+             WHERE (?1 IS NULL OR d.name = ?1) AND (?2 IS NULL OR c.band = ?2)
+               AND (?3 IS NULL OR c.start_utc >= ?3) AND (?4 IS NULL OR c.start_utc < ?4)
+               AND (?5 OR c.deleted = 0)
+             ORDER BY c.start_utc, c.id"
+        );
+        let mut stmt = self.conn.prepare(&sql)?;
+        let rows = stmt.query_map(
+            params![
+                q.drill,
+                q.band.map(Band::name),
+                q.from.map(ts),
+                q.until.map(ts),
+                q.include_deleted
+            ],
+            read_row,
+        )?;
+        for r in rows {
+            let (c, _) = r??;
+            f(&c)?;
+        }
+        Ok(())
+    }
+
+    /// Starts an import: one transaction for a whole file. Nothing is stored unless
+    /// [`Import::commit`] is called.
+    pub fn begin_import(&mut self) -> Result<Import<'_>> {
+        Ok(Import {
+            tx: self
+                .conn
+                .transaction_with_behavior(TransactionBehavior::Immediate)?,
+            now: chrono::Utc::now(),
+        })
     }
 
     /// One contact by id, deleted or not.

@@ -19,7 +19,9 @@ use std::time::Duration;
 
 use rusqlite::{Connection, ErrorCode, OpenFlags, TransactionBehavior};
 
-pub use contacts::{ContactQuery, Cursor, Duplicate, Revision, RevisionKind, StoredContact};
+pub use contacts::{
+    ContactQuery, Cursor, Duplicate, Import, Revision, RevisionKind, StoredContact,
+};
 pub use registry::{Channel, Drill, Note, RosterEntry, ScheduleSlot, StationProfile};
 
 /// `PRAGMA application_id` of a nearsky logbook: "NSKY" in ASCII.

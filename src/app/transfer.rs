@@ -1,0 +1,266 @@
+//! Import of other stations' ADIF files into the logbook (the merge), and export.
+
+use std::collections::HashMap;
+use std::fs::File;
+use std::io::{self, BufRead, BufReader, Read, Write};
+use std::path::Path;
+
+use chrono::{DateTime, Utc};
+use uuid::Uuid;
+
+use crate::domain::{Callsign, ContactId, Locator};
+use crate::formats::adif::adx::{AdxReader, AdxWriter};
+use crate::formats::adif::{self, AdiReader, ImportContext, Next, RawRecord, RecordError};
+use crate::store::{ContactQuery, Logbook, StoreError};
+
+/// How to import.
+#[derive(Debug, Clone, Default)]
+pub struct ImportOptions {
+    /// The logging station, for files that do not say.
+    pub station: Option<Callsign>,
+    /// Put every record in this drill (created if missing).
+    pub drill: Option<String>,
+    /// Read and check everything, store nothing.
+    pub dry_run: bool,
+    /// Import the good records of a file that has bad ones (the bad ones are listed).
+    pub skip_bad: bool,
+}
+
+/// What an import of one file did.
+#[derive(Debug, Default)]
+pub struct ImportReport {
+    pub file: String,
+    pub read: usize,
+    pub imported: usize,
+    pub duplicates: usize,
+    pub rejected: Vec<RecordError>,
+    pub warnings: Vec<String>,
+    /// Whether the records were stored (false for a dry run, or a file refused whole).
+    pub stored: bool,
+}
+
+#[derive(Debug, thiserror::Error)]
+pub enum TransferError {
+    #[error("{path}: {source}")]
+    Io { path: String, source: io::Error },
+    #[error(transparent)]
+    Store(#[from] StoreError),
+}
+
+enum Source<R: BufRead> {
+    Adi(AdiReader<R>),
+    Adx(AdxReader<R>),
+}
+
+impl<R: BufRead> Source<R> {
+    fn next(&mut self, rec: &mut RawRecord) -> io::Result<Next> {
+        match self {
+            Self::Adi(r) => r.next_record(rec),
+            Self::Adx(r) => r.next_record(rec),
+        }
+    }
+}
+
+/// ADX when the name ends in `.adx` or `.xml`, or the content starts with `<?xml`.
+fn open_source(path: &Path) -> io::Result<Source<BufReader<File>>> {
+    let mut f = BufReader::with_capacity(1 << 20, File::open(path)?);
+    let ext = path
+        .extension()
+        .and_then(|e| e.to_str())
+        .map(str::to_ascii_lowercase);
+    let head = f.fill_buf()?;
+    let start = head
+        .iter()
+        .position(|b| !b.is_ascii_whitespace() && *b != 0xEF && *b != 0xBB && *b != 0xBF)
+        .unwrap_or(0);
+    let is_xml =
+        matches!(ext.as_deref(), Some("adx" | "xml")) || head[start..].starts_with(b"<?xml");
+    Ok(if is_xml {
+        Source::Adx(AdxReader::new(f))
+    } else {
+        Source::Adi(AdiReader::new(f))
+    })
+}
+
+/// Imports one file in one transaction: whole, or (with `skip_bad`) without its bad records,
+/// never half by accident. `progress` is called with the number of records read so far.
+pub fn import_file(
+    book: &mut Logbook,
+    path: &Path,
+    opts: &ImportOptions,
+    progress: &mut dyn FnMut(usize),
+) -> Result<ImportReport, TransferError> {
+    let name = path.display().to_string();
+    let io_err = |source| TransferError::Io {
+        path: name.clone(),
+        source,
+    };
+    let mut src = open_source(path).map_err(io_err)?;
+    let mut places: HashMap<Callsign, Locator> = HashMap::new();
+    for e in book.roster()? {
+        if let Some(l) = e.locator {
+            places.insert(e.call, l);
+        }
+    }
+    if let Some(p) = book.current_station()?
+        && let Some(l) = book.station_locator_at(&p.call, Utc::now())?
+    {
+        places.entry(p.call).or_insert(l);
+    }
+    let lookup = |c: &Callsign| {
+        places.get(c).copied().or_else(|| {
+            places
+                .iter()
+                .find(|(k, _)| k.base() == c.base())
+                .map(|(_, l)| *l)
+        })
+    };
+    let file_name = path
+        .file_name()
+        .map_or(name.clone(), |f| f.to_string_lossy().into_owned());
+    let ctx = ImportContext {
+        station: opts.station.as_ref(),
+        drill: opts.drill.as_deref(),
+        file: &file_name,
+        station_locator: &lookup,
+    };
+    let mut report = ImportReport {
+        file: name.clone(),
+        ..ImportReport::default()
+    };
+    let import = book.begin_import()?;
+    if let Some(d) = &opts.drill {
+        import.ensure_drill(d)?;
+    }
+    let mut rec = RawRecord::default();
+    loop {
+        match src.next(&mut rec).map_err(io_err)? {
+            Next::End => break,
+            Next::Rejected(e) => {
+                report.read += 1;
+                report.rejected.push(e);
+            }
+            Next::Record => {
+                report.read += 1;
+                match adif::to_contact(&rec, &ctx, || ContactId(Uuid::new_v4())) {
+                    Err(e) => report.rejected.push(e),
+                    Ok(imported) => {
+                        report.warnings.extend(imported.warnings);
+                        let c = imported.contact;
+                        if let Some(d) = &c.drill
+                            && opts.drill.is_none()
+                        {
+                            import.ensure_drill(d)?;
+                        }
+                        if import.is_known(&c)? {
+                            report.duplicates += 1;
+                        } else {
+                            import.insert(&c)?;
+                            report.imported += 1;
+                        }
+                    }
+                }
+            }
+        }
+        if report.read.is_multiple_of(5000) {
+            progress(report.read);
+        }
+    }
+    if let Source::Adi(r) = &src {
+        report.warnings.extend(r.header_warnings.iter().cloned());
+    }
+    let refuse = !report.rejected.is_empty() && !opts.skip_bad;
+    if opts.dry_run || refuse {
+        drop(import);
+    } else {
+        import.commit()?;
+        report.stored = true;
+    }
+    Ok(report)
+}
+
+/// Export format.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum ExportFormat {
+    Adi,
+    Adx,
+    Csv,
+}
+
+/// Writes the contacts a query selects. Without `include_attempts` only contacts that were
+/// made (worked or partial) go out: a main station log should not receive "no contact"
+/// records. Returns the number written.
+pub fn export(
+    book: &Logbook,
+    q: &ContactQuery,
+    include_attempts: bool,
+    format: ExportFormat,
+    out: impl Write,
+    created: DateTime<Utc>,
+) -> Result<usize, TransferError> {
+    let io_err = |source| TransferError::Io {
+        path: "output".into(),
+        source,
+    };
+    let keep = |c: &crate::domain::Contact| include_attempts || c.outcome.made_contact();
+    let wrap = |e: io::Error| StoreError::Invalid(format!("writing the export: {e}"));
+    match format {
+        ExportFormat::Adi => {
+            let mut w = adif::adi::AdiWriter::new(out, created).map_err(io_err)?;
+            book.for_each_contact(q, |s| {
+                if keep(&s.contact) {
+                    w.write(&s.contact).map_err(wrap)
+                } else {
+                    Ok(())
+                }
+            })?;
+            let n = w.count;
+            w.finish().map_err(io_err)?;
+            Ok(n)
+        }
+        ExportFormat::Adx => {
+            let mut w = AdxWriter::new(out, created).map_err(io_err)?;
+            book.for_each_contact(q, |s| {
+                if keep(&s.contact) {
+                    w.write(&s.contact).map_err(wrap)
+                } else {
+                    Ok(())
+                }
+            })?;
+            let n = w.count;
+            w.finish().map_err(io_err)?;
+            Ok(n)
+        }
+        ExportFormat::Csv => {
+            let mut out = out;
+            let mut paths = crate::domain::geo::PathCache::new();
+            crate::formats::csv::write_header(&mut out).map_err(io_err)?;
+            let mut n = 0;
+            book.for_each_contact(q, |s| {
+                if keep(&s.contact) {
+                    n += 1;
+                    crate::formats::csv::write_row(&mut out, &s.contact, s.deleted, &mut paths)
+                        .map_err(wrap)?;
+                }
+                Ok(())
+            })?;
+            out.flush().map_err(io_err)?;
+            Ok(n)
+        }
+    }
+}
+
+/// Reads a whole file's records without storing anything (used by benchmarks and fuzzing):
+/// returns (records, rejected).
+pub fn parse_only(data: impl Read) -> io::Result<(usize, usize)> {
+    let mut r = AdiReader::new(data);
+    let mut rec = RawRecord::default();
+    let (mut ok, mut bad) = (0, 0);
+    loop {
+        match r.next_record(&mut rec)? {
+            Next::Record => ok += 1,
+            Next::Rejected(_) => bad += 1,
+            Next::End => return Ok((ok, bad)),
+        }
+    }
+}

@@ -1,0 +1,149 @@
+//! `nearsky import` and `nearsky export`.
+
+use std::io::{IsTerminal, Write};
+use std::path::Path;
+
+use chrono::{DateTime, Utc};
+
+use super::args::{ExportArgs, ExportFormatArg, ImportArgs};
+use super::book::open;
+use super::{CliError, usage};
+use crate::app::transfer::{self, ExportFormat, ImportOptions};
+use crate::domain::Callsign;
+use crate::store::ContactQuery;
+
+fn io(e: std::io::Error) -> CliError {
+    CliError::Failure(e.into())
+}
+
+/// Runs `nearsky import`; returns whether any records were rejected.
+pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result<bool, CliError> {
+    let mut book = open(db)?;
+    let station = a
+        .station
+        .as_deref()
+        .map(Callsign::parse)
+        .transpose()
+        .map_err(|e| usage(format!("--station: {e}")))?;
+    let opts = ImportOptions {
+        station,
+        drill: a.drill.clone(),
+        dry_run: a.dry_run,
+        skip_bad: a.skip_bad,
+    };
+    let tty = std::io::stderr().is_terminal();
+    let mut any_rejected = false;
+    let mut refused = Vec::new();
+    for f in &a.files {
+        let name = f.display().to_string();
+        let mut progress = |n: usize| {
+            if tty {
+                eprint!("\r{name}: {n} records read");
+            }
+        };
+        let r = transfer::import_file(&mut book, f, &opts, &mut progress)
+            .map_err(|e| CliError::Failure(e.into()))?;
+        if tty && r.read >= 5000 {
+            eprintln!();
+        }
+        let verb = if a.dry_run {
+            "would import"
+        } else if r.stored {
+            "imported"
+        } else {
+            "not imported"
+        };
+        writeln!(
+            out,
+            "{}: {} records read; {verb} {}, duplicates skipped {}, rejected {}",
+            r.file,
+            r.read,
+            r.imported,
+            r.duplicates,
+            r.rejected.len()
+        )
+        .map_err(io)?;
+        for e in &r.rejected {
+            writeln!(out, "  rejected: {e}").map_err(io)?;
+        }
+        for w in r.warnings.iter().take(50) {
+            writeln!(out, "  warning: {w}").map_err(io)?;
+        }
+        if r.warnings.len() > 50 {
+            writeln!(out, "  ... and {} more warnings", r.warnings.len() - 50).map_err(io)?;
+        }
+        if !r.rejected.is_empty() {
+            any_rejected = true;
+            if !a.skip_bad && !a.dry_run {
+                refused.push(r.file.clone());
+            }
+        }
+    }
+    if !refused.is_empty() {
+        return Err(CliError::Failure(anyhow::anyhow!(
+            "{} not imported because of the rejected records above; fix them, or pass --skip-bad to import the rest",
+            refused.join(", ")
+        )));
+    }
+    Ok(any_rejected)
+}
+
+pub fn export(
+    out: &mut impl Write,
+    db: Option<&Path>,
+    a: &ExportArgs,
+    now: DateTime<Utc>,
+) -> Result<(), CliError> {
+    let book = open(db)?;
+    if let Some(d) = &a.drill
+        && !book
+            .drills()
+            .map_err(|e| CliError::Failure(e.into()))?
+            .iter()
+            .any(|x| &x.name == d)
+    {
+        return Err(usage(format!("--drill: drill `{d}` not found")));
+    }
+    let q = ContactQuery {
+        drill: a.drill.clone(),
+        ..ContactQuery::default()
+    };
+    let format = match a.format {
+        ExportFormatArg::Adi => ExportFormat::Adi,
+        ExportFormatArg::Adx => ExportFormat::Adx,
+        ExportFormatArg::Csv => ExportFormat::Csv,
+    };
+    let n = match &a.output {
+        None => transfer::export(
+            &book,
+            &q,
+            a.include_attempts,
+            format,
+            std::io::BufWriter::new(out),
+            now,
+        ),
+        Some(path) => {
+            if path.exists() && !a.force {
+                return Err(usage(format!(
+                    "{} exists; pass --force to overwrite it",
+                    path.display()
+                )));
+            }
+            let f = std::fs::File::create(path)
+                .map_err(|e| CliError::Failure(anyhow::anyhow!("{}: {e}", path.display())))?;
+            let n = transfer::export(
+                &book,
+                &q,
+                a.include_attempts,
+                format,
+                std::io::BufWriter::new(f),
+                now,
+            );
+            if let Ok(n) = &n {
+                eprintln!("wrote {n} contacts to {}", path.display());
+            }
+            n
+        }
+    };
+    n.map(|_| ()).map_err(|e| CliError::Failure(e.into()))
+}

@@ -1,0 +1,652 @@
+//! ADI, ADIF's tagged text format: a streaming reader and a writer.
+//!
+//! The reader tolerates what the standard allows (free text before the header's end, tags in
+//! any case, unknown and application fields, type indicators, text between fields, a missing
+//! final `<EOR>`), keeps memory bounded whatever lengths a file declares, never panics, and
+//! reports each problem with its line. It scans with `memchr` and reuses one buffer per
+//! record, so it does not allocate per field.
+
+use std::io::{self, Read, Write};
+use std::ops::Range;
+
+use memchr::memchr;
+
+use super::RecordError;
+
+/// Longest field value kept (bytes). A field that declares more is skipped and its record
+/// rejected, without the reader ever holding more than this.
+pub const MAX_FIELD_BYTES: usize = 64 * 1024;
+/// Most fields kept per record.
+pub const MAX_FIELDS: usize = 1000;
+/// Longest tag `<NAME:LENGTH:TYPE>` accepted.
+const MAX_TAG: usize = 256;
+const CHUNK: usize = 256 * 1024;
+
+/// One field of a record, as spans into the record's buffer.
+#[derive(Debug, Clone)]
+struct Span {
+    name: Range<usize>,
+    value: Range<usize>,
+    line: u32,
+}
+
+/// A record as read: field names (upper case) and values (UTF-8), with the line each field
+/// started on. Reused from record to record.
+#[derive(Debug, Default, Clone)]
+pub struct RawRecord {
+    data: String,
+    fields: Vec<Span>,
+    /// Line of the first field.
+    pub line: u32,
+    /// Things the reader tolerated in this record (text after a field, a missing `<EOR>`, …).
+    pub warnings: Vec<String>,
+    rejected: Option<RecordError>,
+}
+
+impl RawRecord {
+    pub fn clear(&mut self) {
+        self.data.clear();
+        self.fields.clear();
+        self.line = 0;
+        self.warnings.clear();
+        self.rejected = None;
+    }
+
+    /// Every field in file order: (name, value, line).
+    pub fn fields(&self) -> impl Iterator<Item = (&str, &str, u32)> {
+        self.fields.iter().map(|s| {
+            (
+                &self.data[s.name.clone()],
+                &self.data[s.value.clone()],
+                s.line,
+            )
+        })
+    }
+
+    /// The value of a field (names are compared in upper case).
+    pub fn get(&self, name: &str) -> Option<&str> {
+        self.fields()
+            .find(|(n, _, _)| *n == name)
+            .map(|(_, v, _)| v)
+    }
+
+    /// The value and line of a field.
+    pub fn get_with_line(&self, name: &str) -> Option<(&str, u32)> {
+        self.fields()
+            .find(|(n, _, _)| *n == name)
+            .map(|(_, v, l)| (v, l))
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.fields.is_empty()
+    }
+
+    /// Adds a field (used by the ADX reader and tests).
+    pub fn push(&mut self, name: &str, value: &str, line: u32) {
+        if self.fields.is_empty() {
+            self.line = line;
+        }
+        let n0 = self.data.len();
+        self.data.push_str(name);
+        self.data[n0..].make_ascii_uppercase();
+        let v0 = self.data.len();
+        self.data.push_str(value);
+        self.fields.push(Span {
+            name: n0..v0,
+            value: v0..self.data.len(),
+            line,
+        });
+    }
+
+    fn has(&self, upper: &str) -> bool {
+        self.fields
+            .iter()
+            .any(|s| &self.data[s.name.clone()] == upper)
+    }
+
+    fn reject(&mut self, e: RecordError) {
+        if self.rejected.is_none() {
+            self.rejected = Some(e);
+        }
+    }
+}
+
+/// What the reader found next.
+#[derive(Debug)]
+pub enum Next {
+    /// A record is in the buffer passed in.
+    Record,
+    /// A record that cannot be used, and why; the reader has moved past it.
+    Rejected(RecordError),
+    /// End of the file.
+    End,
+}
+
+/// A streaming ADI reader over any byte source.
+pub struct AdiReader<R: Read> {
+    src: R,
+    buf: Vec<u8>,
+    pos: usize,
+    eof: bool,
+    /// Line number (1-based) at `buf[pos]`.
+    line: u32,
+    started: bool,
+    header_done: bool,
+    header: Vec<(String, String)>,
+    /// Warnings about the header, available after the first record.
+    pub header_warnings: Vec<String>,
+}
+
+enum Tag {
+    Eoh,
+    Eor,
+    Field {
+        name: Range<usize>,
+        len: usize,
+    },
+    /// Not a valid tag: skip the `<` and go on.
+    Bad(String),
+}
+
+impl<R: Read> AdiReader<R> {
+    pub fn new(src: R) -> Self {
+        Self {
+            src,
+            buf: Vec::with_capacity(CHUNK),
+            pos: 0,
+            eof: false,
+            line: 1,
+            started: false,
+            header_done: false,
+            header: Vec::new(),
+            header_warnings: Vec::new(),
+        }
+    }
+
+    /// Header fields read so far (names upper case), e.g. `ADIF_VER`, `PROGRAMID`.
+    pub fn header(&self) -> &[(String, String)] {
+        &self.header
+    }
+
+    /// Makes at least `n` bytes available from `pos`, unless the source ends first.
+    fn fill(&mut self, n: usize) -> io::Result<bool> {
+        while self.buf.len() - self.pos < n && !self.eof {
+            if self.pos > 0 && self.pos >= self.buf.len() / 2 {
+                self.buf.drain(..self.pos);
+                self.pos = 0;
+            }
+            let old = self.buf.len();
+            let want = CHUNK.max(n - (old - self.pos));
+            self.buf.resize(old + want, 0);
+            let got = loop {
+                match self.src.read(&mut self.buf[old..]) {
+                    Ok(k) => break k,
+                    Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
+                    Err(e) => {
+                        self.buf.truncate(old);
+                        return Err(e);
+                    }
+                }
+            };
+            self.buf.truncate(old + got);
+            if got == 0 {
+                self.eof = true;
+            }
+        }
+        Ok(self.buf.len() - self.pos >= n)
+    }
+
+    fn advance(&mut self, n: usize) {
+        let end = (self.pos + n).min(self.buf.len());
+        self.line += memchr::memchr_iter(b'\n', &self.buf[self.pos..end]).count() as u32;
+        self.pos = end;
+    }
+
+    /// Moves to the next `<`; false at the end of the source.
+    fn seek_tag(&mut self) -> io::Result<bool> {
+        loop {
+            if let Some(i) = memchr(b'<', &self.buf[self.pos..]) {
+                self.advance(i);
+                return Ok(true);
+            }
+            let rest = self.buf.len() - self.pos;
+            self.advance(rest);
+            if !self.fill(1)? {
+                return Ok(false);
+            }
+        }
+    }
+
+    /// Parses the tag at `pos` (which holds `<`) without consuming it.
+    fn parse_tag(&mut self) -> io::Result<(Tag, usize)> {
+        self.fill(MAX_TAG)?;
+        let window = &self.buf[self.pos..self.buf.len().min(self.pos + MAX_TAG)];
+        let Some(gt) = memchr(b'>', &window[1..]).map(|i| i + 1) else {
+            return Ok((Tag::Bad("`<` without a closing `>`".into()), 1));
+        };
+        // A `<` inside the tag means this `<` was stray text.
+        if let Some(lt) = memchr(b'<', &window[1..gt]) {
+            return Ok((Tag::Bad("stray `<`".into()), lt + 1));
+        }
+        let body = &window[1..gt];
+        let shown = || String::from_utf8_lossy(&window[..=gt]).into_owned();
+        let mut parts = body.splitn(4, |b| *b == b':');
+        let name = parts.next().unwrap_or_default();
+        let len = parts.next();
+        let ty = parts.next();
+        if parts.next().is_some() {
+            return Ok((
+                Tag::Bad(format!("tag `{}` has too many `:` parts", shown())),
+                gt + 1,
+            ));
+        }
+        let Some(len) = len else {
+            return Ok(match name {
+                n if n.eq_ignore_ascii_case(b"eoh") => (Tag::Eoh, gt + 1),
+                n if n.eq_ignore_ascii_case(b"eor") => (Tag::Eor, gt + 1),
+                _ => (Tag::Bad(format!("tag `{}` has no length", shown())), gt + 1),
+            });
+        };
+        let name_ok = !name.is_empty()
+            && name[0] != b' '
+            && name[name.len() - 1] != b' '
+            && name.iter().all(|b| (0x21..0x7f).contains(b) || *b == b' ')
+            && !name.iter().any(|b| matches!(b, b',' | b'{' | b'}'));
+        if !name_ok {
+            return Ok((
+                Tag::Bad(format!("tag `{}` has an invalid field name", shown())),
+                gt + 1,
+            ));
+        }
+        if len.is_empty() || len.len() > 12 || !len.iter().all(u8::is_ascii_digit) {
+            return Ok((
+                Tag::Bad(format!("tag `{}` has an invalid length", shown())),
+                gt + 1,
+            ));
+        }
+        if let Some(t) = ty
+            && !(t.len() == 1 && t[0].is_ascii_alphabetic())
+        {
+            return Ok((
+                Tag::Bad(format!("tag `{}` has an invalid type indicator", shown())),
+                gt + 1,
+            ));
+        }
+        let n = len.iter().fold(0usize, |acc, d| {
+            acc.saturating_mul(10).saturating_add(usize::from(d - b'0'))
+        });
+        Ok((
+            Tag::Field {
+                name: 1..1 + name.len(),
+                len: n,
+            },
+            gt + 1,
+        ))
+    }
+
+    /// Reads the next record into `rec`.
+    pub fn next_record(&mut self, rec: &mut RawRecord) -> io::Result<Next> {
+        rec.clear();
+        if !self.started {
+            self.started = true;
+            self.fill(3)?;
+            if self.buf[self.pos..].starts_with(&[0xEF, 0xBB, 0xBF]) {
+                self.advance(3);
+            }
+        }
+        loop {
+            if !self.seek_tag()? {
+                return Ok(self.finish(rec));
+            }
+            let tag_line = self.line;
+            let (tag, used) = self.parse_tag()?;
+            match tag {
+                Tag::Bad(why) => {
+                    rec.warnings
+                        .push(format!("line {tag_line}: {why}: skipped"));
+                    self.advance(used.max(1));
+                }
+                Tag::Eoh => {
+                    self.advance(used);
+                    if self.header_done {
+                        rec.warnings
+                            .push(format!("line {tag_line}: a second <EOH>: ignored"));
+                    } else {
+                        self.header_done = true;
+                        self.header = rec
+                            .fields()
+                            .map(|(n, v, _)| (n.to_string(), v.to_string()))
+                            .collect();
+                        self.header_warnings = std::mem::take(&mut rec.warnings);
+                        rec.clear();
+                    }
+                }
+                Tag::Eor => {
+                    self.advance(used);
+                    // Fields before the first <EOH>-or-<EOR> are a record when <EOR> comes first.
+                    self.header_done = true;
+                    if rec.is_empty() && rec.rejected.is_none() {
+                        continue;
+                    }
+                    return Ok(match rec.rejected.take() {
+                        Some(e) => Next::Rejected(e),
+                        None => Next::Record,
+                    });
+                }
+                Tag::Field { name, len } => {
+                    let name_text = String::from_utf8_lossy(
+                        &self.buf[self.pos + name.start..self.pos + name.end],
+                    )
+                    .to_ascii_uppercase();
+                    self.advance(used);
+                    self.read_value(rec, &name_text, len, tag_line)?;
+                }
+            }
+        }
+    }
+
+    fn read_value(
+        &mut self,
+        rec: &mut RawRecord,
+        name: &str,
+        len: usize,
+        line: u32,
+    ) -> io::Result<()> {
+        if len > MAX_FIELD_BYTES {
+            rec.reject(RecordError::field(
+                line,
+                name,
+                &format!("{len} bytes"),
+                format!("longer than the {MAX_FIELD_BYTES} bytes nearsky reads; record skipped"),
+            ));
+            // Skip the declared data without holding it.
+            let mut left = len;
+            while left > 0 {
+                if !self.fill(1)? {
+                    break;
+                }
+                let k = left.min(self.buf.len() - self.pos);
+                self.advance(k);
+                left -= k;
+            }
+            return Ok(());
+        }
+        // Enough for the byte reading, the character reading (up to 4 bytes a character) and a
+        // look past the end.
+        self.fill(len * 4 + 64)?;
+        let avail = &self.buf[self.pos..];
+        let by_bytes = len.min(avail.len());
+        let mut take = by_bytes;
+        let mut note = None;
+        if by_bytes < len {
+            note = Some(format!(
+                "line {line}: field {name} declares {len} bytes but the file ends after {by_bytes}"
+            ));
+        } else if !avail[..take].is_ascii() {
+            let ends_clean = |end: usize| {
+                let rest = &avail[end..];
+                match rest.iter().position(|b| !b.is_ascii_whitespace()) {
+                    None => true,
+                    Some(i) => rest[i] == b'<',
+                }
+            };
+            // The byte reading stops before a UTF-8 continuation byte: it cut a character.
+            let cut_in_char = take < avail.len() && (avail[take] & 0xC0) == 0x80;
+            if (cut_in_char || !ends_clean(take))
+                && let Some(end) = char_end(avail, len)
+                && ends_clean(end)
+            {
+                take = end;
+                note = Some(format!(
+                    "line {line}: field {name}: its length counts characters, not bytes"
+                ));
+            }
+        }
+        if rec.fields.len() >= MAX_FIELDS {
+            rec.reject(RecordError::field(
+                line,
+                name,
+                "",
+                format!("more than {MAX_FIELDS} fields in one record"),
+            ));
+        } else if rec.has(name) {
+            let value = decode(&avail[..take]);
+            rec.reject(RecordError::field(
+                line,
+                name,
+                &value,
+                "appears twice in the record".to_string(),
+            ));
+        } else if len > 0 {
+            if !avail[..take].is_ascii() {
+                rec.warnings.push(format!("line {line}: field {name} holds non-ASCII text (ADI is ASCII only); read as {}", if std::str::from_utf8(&avail[..take]).is_ok() { "UTF-8" } else { "Latin-1" }));
+            }
+            let value = decode(&avail[..take]);
+            rec.push(name, &value, line);
+        }
+        if let Some(n) = note {
+            rec.warnings.push(n);
+        }
+        self.advance(take);
+        Ok(())
+    }
+
+    fn finish(&mut self, rec: &mut RawRecord) -> Next {
+        if rec.is_empty() && rec.rejected.is_none() {
+            return Next::End;
+        }
+        if let Some(e) = rec.rejected.take() {
+            return Next::Rejected(e);
+        }
+        if rec.has("CALL") && rec.has("QSO_DATE") && rec.has("TIME_ON") {
+            rec.warnings.push(format!(
+                "line {}: the last record has no <EOR>; kept",
+                rec.line
+            ));
+            Next::Record
+        } else {
+            let line = rec.line;
+            rec.clear();
+            Next::Rejected(RecordError::record(
+                line,
+                "incomplete record at the end of the file (no <EOR>, and CALL, QSO_DATE or TIME_ON missing)",
+            ))
+        }
+    }
+}
+
+/// End (in bytes) of the first `chars` UTF-8 characters of `b`, when `b` is valid UTF-8 that
+/// far.
+fn char_end(b: &[u8], chars: usize) -> Option<usize> {
+    let valid = match std::str::from_utf8(b) {
+        Ok(s) => s,
+        Err(e) => std::str::from_utf8(&b[..e.valid_up_to()]).ok()?,
+    };
+    match valid.char_indices().nth(chars) {
+        Some((i, _)) => Some(i),
+        None if valid.chars().count() == chars => Some(valid.len()),
+        None => None,
+    }
+}
+
+/// Bytes as text: UTF-8 when valid, else Latin-1 (every byte is a character).
+fn decode(b: &[u8]) -> std::borrow::Cow<'_, str> {
+    match std::str::from_utf8(b) {
+        Ok(s) => std::borrow::Cow::Borrowed(s),
+        Err(_) => std::borrow::Cow::Owned(b.iter().map(|&c| char::from(c)).collect()),
+    }
+}
+
+/// Writes one ADI field; the value must be ASCII (lengths are then bytes and characters
+/// alike, for every reader).
+pub fn write_field(w: &mut impl Write, name: &str, value: &str) -> io::Result<()> {
+    if value.is_empty() {
+        return Ok(());
+    }
+    write!(w, "<{name}:{}>{value} ", value.len())
+}
+
+/// Writes contacts as an ADI file: a line of text, the header, then one record per line.
+pub struct AdiWriter<W: Write> {
+    w: W,
+    paths: crate::domain::geo::PathCache,
+    pub count: usize,
+}
+
+impl<W: Write> AdiWriter<W> {
+    pub fn new(mut w: W, created: chrono::DateTime<chrono::Utc>) -> io::Result<Self> {
+        writeln!(w, "nearsky drill log export (ADIF {})", super::ADIF_VERSION)?;
+        write_field(&mut w, "ADIF_VER", super::ADIF_VERSION)?;
+        write_field(&mut w, "PROGRAMID", super::PROGRAM_ID)?;
+        write_field(&mut w, "PROGRAMVERSION", env!("CARGO_PKG_VERSION"))?;
+        write_field(
+            &mut w,
+            "CREATED_TIMESTAMP",
+            &created.format("%Y%m%d %H%M%S").to_string(),
+        )?;
+        writeln!(w, "<EOH>")?;
+        Ok(Self {
+            w,
+            paths: crate::domain::geo::PathCache::new(),
+            count: 0,
+        })
+    }
+
+    pub fn write(&mut self, c: &crate::domain::Contact) -> io::Result<()> {
+        let w = &mut self.w;
+        super::for_each_field(c, true, &mut self.paths, |name, value| {
+            write_field(w, name, value)
+        })?;
+        self.w.write_all(b"<EOR>\n")?;
+        self.count += 1;
+        Ok(())
+    }
+
+    pub fn finish(mut self) -> io::Result<W> {
+        self.w.flush()?;
+        Ok(self.w)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    type Fields = Vec<(String, String)>;
+
+    fn read_all(text: &[u8]) -> (Vec<Fields>, Vec<String>, Vec<String>) {
+        let mut r = AdiReader::new(text);
+        let mut rec = RawRecord::default();
+        let mut records = Vec::new();
+        let mut rejected = Vec::new();
+        let mut warnings = Vec::new();
+        loop {
+            match r.next_record(&mut rec).unwrap() {
+                Next::Record => {
+                    records.push(
+                        rec.fields()
+                            .map(|(n, v, _)| (n.to_string(), v.to_string()))
+                            .collect(),
+                    );
+                    warnings.extend(rec.warnings.iter().cloned());
+                }
+                Next::Rejected(e) => rejected.push(e.to_string()),
+                Next::End => break,
+            }
+        }
+        (records, rejected, warnings)
+    }
+
+    #[test]
+    fn data_longer_than_its_length_keeps_the_first_bytes() {
+        let (r, _, w) = read_all(b"<CALL:3>Q0TEST <EOR>");
+        assert_eq!(r[0], vec![("CALL".into(), "Q0T".into())]);
+        assert!(w.is_empty(), "text between fields is allowed: {w:?}");
+    }
+
+    #[test]
+    fn the_length_decides_even_when_a_tag_follows_inside() {
+        let (r, _, _) = read_all(b"<CALL:9>Q0TEST<BAND:3>40m <EOR>");
+        assert_eq!(r[0], vec![("CALL".into(), "Q0TEST<BA".into())]);
+    }
+
+    #[test]
+    fn bytes_and_characters_are_both_understood() {
+        // ADIF sheet §1.4: `José` is 4 characters but 5 UTF-8 bytes.
+        let (r, _, w) = read_all("<NAME:5>José<QTH:3>Ulm<EOR>".as_bytes());
+        assert_eq!(
+            r[0],
+            vec![("NAME".into(), "José".into()), ("QTH".into(), "Ulm".into())]
+        );
+        assert!(w.iter().any(|w| w.contains("non-ASCII")));
+        let (r, _, w) = read_all("<NAME:4>José<QTH:3>Ulm<EOR>".as_bytes());
+        assert_eq!(
+            r[0],
+            vec![("NAME".into(), "José".into()), ("QTH".into(), "Ulm".into())]
+        );
+        assert!(w.iter().any(|w| w.contains("counts characters")), "{w:?}");
+        let (r, _, _) = read_all(b"<NAME:4>Jos\xe9<EOR>");
+        assert_eq!(r[0][0].1, "José", "Latin-1");
+    }
+
+    #[test]
+    fn bad_tags_are_skipped_with_a_warning() {
+        let (r, _, w) = read_all(b"<CALL :6>Q0TEST <BAND:3>40m <EOR >x<EOR>");
+        assert_eq!(r[0], vec![("BAND".into(), "40m".into())]);
+        assert_eq!(w.len(), 2, "{w:?}");
+        assert!(w[0].contains("invalid field name"));
+    }
+
+    #[test]
+    fn a_duplicate_field_rejects_the_record_naming_line_and_field() {
+        let (r, rej, _) = read_all(b"<CALL:5>Q1ABC\n<CALL:5>Q2ABC <EOR><CALL:5>Q3ABC<EOR>");
+        assert_eq!(r.len(), 1);
+        assert_eq!(
+            rej,
+            vec!["line 2: field CALL `Q2ABC`: appears twice in the record"]
+        );
+    }
+
+    #[test]
+    fn huge_declared_lengths_are_skipped_not_held() {
+        let mut text = b"<NOTES:99999999999>".to_vec();
+        text.extend(std::iter::repeat_n(b'x', 100_000));
+        text.extend(b"<EOR><CALL:5>Q1ABC<EOR>");
+        let (r, rej, _) = read_all(&text);
+        assert!(
+            rej[0].contains("NOTES") && rej[0].contains("longer than"),
+            "{rej:?}"
+        );
+        assert!(
+            r.is_empty(),
+            "the declared length swallowed the rest of the file"
+        );
+    }
+
+    #[test]
+    fn an_unterminated_last_record_is_kept_only_when_complete() {
+        let (r, _, w) = read_all(b"<CALL:5>Q1ABC<QSO_DATE:8>20250614<TIME_ON:4>1805");
+        assert_eq!(r.len(), 1);
+        assert!(w.iter().any(|w| w.contains("no <EOR>")));
+        let (r, rej, _) = read_all(b"<CALL:5>Q1ABC<EOR><CALL:5>Q2ABC");
+        assert_eq!(r.len(), 1);
+        assert!(rej[0].contains("incomplete record"));
+    }
+
+    #[test]
+    fn a_file_starting_with_a_tag_may_still_hold_a_header() {
+        let mut r = AdiReader::new(&b"<ADIF_VER:5>3.1.7<EOH><CALL:5>Q1ABC<EOR>"[..]);
+        let mut rec = RawRecord::default();
+        assert!(matches!(r.next_record(&mut rec).unwrap(), Next::Record));
+        assert_eq!(r.header()[0], ("ADIF_VER".into(), "3.1.7".into()));
+        assert_eq!(rec.get("CALL"), Some("Q1ABC"));
+    }
+
+    #[test]
+    fn empty_input_has_no_records() {
+        let (r, rej, _) = read_all(b"");
+        assert!(r.is_empty() && rej.is_empty());
+        let (r, _, _) = read_all(b"\xEF\xBB\xBF\n<CALL:5>Q1ABC<eor>");
+        assert_eq!(r.len(), 1);
+    }
+}
