@@ -716,8 +716,7 @@ fn importing_twice_adds_nothing_and_bad_files_are_all_or_nothing() {
     let file4 = write_file(
         dir.path(),
         "fresh.adi",
-        "<CALL:5>Q2ABC<QSO_DATE:8>20251004<TIME_ON:4>1300<BAND:3>60m<MODE:3>SSB<EOR>"
-            .as_bytes(),
+        "<CALL:5>Q2ABC<QSO_DATE:8>20251004<TIME_ON:4>1300<BAND:3>60m<MODE:3>SSB<EOR>".as_bytes(),
     );
     let r = transfer::import_file(
         &mut merged,

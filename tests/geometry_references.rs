@@ -220,3 +220,32 @@ fn chapman_foe_matches_the_formula_table() {
         }
     }
 }
+
+/// Wilson score intervals against `wilson.csv` (closed form, checked there by bisection; the
+/// rows 81/263, 15/148, 0/20, 1/29 are the example counts of Newcombe 1998, Statistics in
+/// Medicine 17:857–872; the same values as Python statsmodels `proportion_confint(method=
+/// "wilson")`).
+#[test]
+fn wilson_intervals_match_the_reference_table() {
+    use nearsky::domain::stats::wilson;
+    let csv = Csv::read("wilson.csv");
+    assert!(csv.provenance.contains("Newcombe 1998"));
+    let mut checked = 0;
+    for r in csv.records() {
+        let (k, n, z) = (r.f64("k") as u64, r.f64("n") as u64, r.f64("z"));
+        let (lo, hi) = wilson(k, n, z).unwrap();
+        assert!(
+            (lo - r.f64("wilson_lo")).abs() < 1e-6,
+            "{k}/{n} at z {z}: lo {lo}"
+        );
+        assert!(
+            (hi - r.f64("wilson_hi")).abs() < 1e-6,
+            "{k}/{n} at z {z}: hi {hi}"
+        );
+        checked += 1;
+    }
+    assert!(checked >= 30);
+    // propagation sheet §6: 3/5 → 0.2307–0.8824; Newcombe 1998 81/263 → 0.2553–0.3662.
+    let (lo, hi) = wilson(3, 5, nearsky::domain::stats::Z95).unwrap();
+    assert!((lo - 0.2307).abs() < 1e-4 && (hi - 0.8824).abs() < 1e-4);
+}

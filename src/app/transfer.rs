@@ -133,6 +133,7 @@ pub fn import_file(
         import.ensure_drill(d)?;
     }
     let mut rec = RawRecord::default();
+    let mut drills = std::collections::HashSet::new();
     loop {
         match src.next(&mut rec).map_err(io_err)? {
             Next::End => break,
@@ -149,8 +150,10 @@ pub fn import_file(
                         let c = imported.contact;
                         if let Some(d) = &c.drill
                             && opts.drill.is_none()
+                            && !drills.contains(d)
                         {
                             import.ensure_drill(d)?;
+                            drills.insert(d.clone());
                         }
                         if import.is_known(&c)? {
                             report.duplicates += 1;

@@ -5,7 +5,7 @@ use std::fmt;
 
 use chrono::{DateTime, NaiveDate, Utc};
 use serde::{Deserialize, Serialize};
-use uuid::Uuid;
+pub use uuid::Uuid;
 
 use super::callsign::Callsign;
 use super::frequency::{Band, Frequency};

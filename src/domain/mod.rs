@@ -3,11 +3,13 @@
 
 pub mod callsign;
 pub mod contact;
+pub mod coverage;
 pub mod frequency;
 pub mod latlon;
 pub mod locator;
 pub mod mode;
 pub mod outcome;
+pub mod plan;
 pub mod power;
 pub mod report;
 pub mod utc;
@@ -27,5 +29,6 @@ pub use report::{Report, ReportError};
 pub use utc::{TimeError, parse_utc};
 pub mod geo;
 pub mod skywave;
+pub mod stats;
 pub mod sun;
 pub mod text;

@@ -233,11 +233,12 @@ impl Import<'_> {
 
     /// Creates the drill if the logbook does not have it yet.
     pub fn ensure_drill(&self, name: &str) -> Result<()> {
-        self.tx.execute(
-            "INSERT INTO drill (name, description, created_at) SELECT ?1, 'created by an import', ?2
-             WHERE NOT EXISTS (SELECT 1 FROM drill WHERE name = ?1)",
-            params![name, ts(self.now)],
-        )?;
+        self.tx
+            .prepare_cached(
+                "INSERT INTO drill (name, description, created_at) SELECT ?1, 'created by an import', ?2
+                 WHERE NOT EXISTS (SELECT 1 FROM drill WHERE name = ?1)",
+            )?
+            .execute(params![name, ts(self.now)])?;
         Ok(())
     }
 
@@ -260,9 +261,8 @@ fn snapshot_json(c: &Contact) -> Result<String> {
 impl Logbook {
     fn drill_id(tx: &rusqlite::Connection, name: &Option<String>) -> Result<Option<i64>> {
         let Some(name) = name else { return Ok(None) };
-        let id: Option<i64> = tx
-            .query_row("SELECT id FROM drill WHERE name = ?1", [name], |r| r.get(0))
-            .optional()?;
+        let mut stmt = tx.prepare_cached("SELECT id FROM drill WHERE name = ?1")?;
+        let id: Option<i64> = stmt.query_row([name], |r| r.get(0)).optional()?;
         id.map(Some).ok_or_else(|| StoreError::NotFound {
             what: "drill",
             key: name.clone(),
@@ -435,6 +435,9 @@ impl Logbook {
     /// Starts an import: one transaction for a whole file. Nothing is stored unless
     /// [`Import::commit`] is called.
     pub fn begin_import(&mut self) -> Result<Import<'_>> {
+        // A bulk import touches every index page; a larger page cache keeps them in memory
+        // (64 MiB at most, released when the connection closes).
+        self.conn.pragma_update(None, "cache_size", -65_536)?;
         Ok(Import {
             tx: self
                 .conn

@@ -6,6 +6,7 @@ use rusqlite::{OptionalExtension, TransactionBehavior, params};
 use uuid::Uuid;
 
 use super::{Logbook, Result, StoreError};
+pub use crate::domain::plan::ScheduleSlot;
 use crate::domain::{Band, Callsign, Frequency, Locator, Mode, Power};
 
 const CURRENT_DRILL: &str = "current_drill";
@@ -60,26 +61,6 @@ pub struct Note {
     pub band: Option<Band>,
     pub station: Callsign,
     pub text: String,
-}
-
-/// One slot of a drill's band schedule: from `start_minute` (UTC, minutes after midnight) for
-/// `minutes`, the band to use first and the one to fall back to.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ScheduleSlot {
-    pub start_minute: u16,
-    pub minutes: u16,
-    pub primary: Option<Band>,
-    pub alternate: Option<Band>,
-    pub note: String,
-}
-
-impl ScheduleSlot {
-    /// Whether the slot covers a minute of the UTC day (slots may run past midnight).
-    pub fn covers(&self, minute_of_day: u16) -> bool {
-        let end = u32::from(self.start_minute) + u32::from(self.minutes);
-        let m = u32::from(minute_of_day);
-        (u32::from(self.start_minute)..end).contains(&m) || (end > 1440 && m < end - 1440)
-    }
 }
 
 fn ts(t: DateTime<Utc>) -> i64 {

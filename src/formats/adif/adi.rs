@@ -98,6 +98,22 @@ impl RawRecord {
         });
     }
 
+    /// Adds a field whose name is already upper case.
+    fn push_upper(&mut self, name: &str, value: &str, line: u32) {
+        if self.fields.is_empty() {
+            self.line = line;
+        }
+        let n0 = self.data.len();
+        self.data.push_str(name);
+        let v0 = self.data.len();
+        self.data.push_str(value);
+        self.fields.push(Span {
+            name: n0..v0,
+            value: v0..self.data.len(),
+            line,
+        });
+    }
+
     fn has(&self, upper: &str) -> bool {
         self.fields
             .iter()
@@ -128,8 +144,9 @@ pub struct AdiReader<R: Read> {
     buf: Vec<u8>,
     pos: usize,
     eof: bool,
-    /// Line number (1-based) at `buf[pos]`.
+    /// Line number (1-based) at `buf[line_pos]`; lines are counted lazily up to `pos`.
     line: u32,
+    line_pos: usize,
     started: bool,
     header_done: bool,
     header: Vec<(String, String)>,
@@ -156,6 +173,7 @@ impl<R: Read> AdiReader<R> {
             pos: 0,
             eof: false,
             line: 1,
+            line_pos: 0,
             started: false,
             header_done: false,
             header: Vec::new(),
@@ -172,8 +190,10 @@ impl<R: Read> AdiReader<R> {
     fn fill(&mut self, n: usize) -> io::Result<bool> {
         while self.buf.len() - self.pos < n && !self.eof {
             if self.pos > 0 && self.pos >= self.buf.len() / 2 {
+                self.current_line();
                 self.buf.drain(..self.pos);
                 self.pos = 0;
+                self.line_pos = 0;
             }
             let old = self.buf.len();
             let want = CHUNK.max(n - (old - self.pos));
@@ -197,9 +217,14 @@ impl<R: Read> AdiReader<R> {
     }
 
     fn advance(&mut self, n: usize) {
-        let end = (self.pos + n).min(self.buf.len());
-        self.line += memchr::memchr_iter(b'\n', &self.buf[self.pos..end]).count() as u32;
-        self.pos = end;
+        self.pos = (self.pos + n).min(self.buf.len());
+    }
+
+    /// The line number at `pos`.
+    fn current_line(&mut self) -> u32 {
+        self.line += memchr::memchr_iter(b'\n', &self.buf[self.line_pos..self.pos]).count() as u32;
+        self.line_pos = self.pos;
+        self.line
     }
 
     /// Moves to the next `<`; false at the end of the source.
@@ -298,7 +323,7 @@ impl<R: Read> AdiReader<R> {
             if !self.seek_tag()? {
                 return Ok(self.finish(rec));
             }
-            let tag_line = self.line;
+            let tag_line = self.current_line();
             let (tag, used) = self.parse_tag()?;
             match tag {
                 Tag::Bad(why) => {
@@ -334,12 +359,15 @@ impl<R: Read> AdiReader<R> {
                     });
                 }
                 Tag::Field { name, len } => {
-                    let name_text = String::from_utf8_lossy(
-                        &self.buf[self.pos + name.start..self.pos + name.end],
-                    )
-                    .to_ascii_uppercase();
+                    // Field names were checked to be printable ASCII in `parse_tag`.
+                    let mut name_buf = [0u8; MAX_TAG];
+                    let n = name.len();
+                    name_buf[..n]
+                        .copy_from_slice(&self.buf[self.pos + name.start..self.pos + name.end]);
+                    name_buf[..n].make_ascii_uppercase();
                     self.advance(used);
-                    self.read_value(rec, &name_text, len, tag_line)?;
+                    let name_text = std::str::from_utf8(&name_buf[..n]).unwrap_or("?");
+                    self.read_value(rec, name_text, len, tag_line)?;
                 }
             }
         }
@@ -422,7 +450,7 @@ impl<R: Read> AdiReader<R> {
                 rec.warnings.push(format!("line {line}: field {name} holds non-ASCII text (ADI is ASCII only); read as {}", if std::str::from_utf8(&avail[..take]).is_ok() { "UTF-8" } else { "Latin-1" }));
             }
             let value = decode(&avail[..take]);
-            rec.push(name, &value, line);
+            rec.push_upper(name, &value, line);
         }
         if let Some(n) = note {
             rec.warnings.push(n);

@@ -1,0 +1,222 @@
+//! ADIF speed: parse-only, full import, export, and Python `adif-io` on the same file.
+//!
+//! Run: `cargo bench --bench adif`. Set `NEARSKY_ADIF_IO_PYTHON` to a Python that has
+//! `adif-io` to time it too (`.ci/run` shows how to make one). Targets: parse-only ≥ 300 MB/s
+//! and ≥ 50× the Python reader; import ≥ 200,000 records/s; export of 1,000,000 contacts < 2 s.
+
+use std::path::PathBuf;
+use std::time::Instant;
+
+use chrono::{DateTime, Utc};
+use nearsky::app::transfer::{self, ExportFormat, ImportOptions};
+use nearsky::domain::*;
+use nearsky::formats::adif::adi::AdiWriter;
+use nearsky::store::{ContactQuery, Logbook};
+use uuid::Uuid;
+
+/// Contacts in the drill's own mix: 12 stations, three bands, SSB and digital, a third failed.
+fn contacts(n: u64, seed: u128) -> Vec<Contact> {
+    let calls: Vec<Callsign> = [
+        "Q3NET", "Q4SHL", "Q7HSP", "Q2FIR", "Q5SHL", "Q8WTR", "Q6MOB", "Q1CTY", "Q9RLY", "Q3RED",
+        "Q4AIR", "Q2SCH",
+    ]
+    .iter()
+    .map(|c| Callsign::parse(c).unwrap())
+    .collect();
+    let grids: Vec<Locator> = [
+        "JN17ga", "JN17gb", "JN17ig", "JN06wu", "JN17ap", "JN16hc", "JN17wm", "JN18io", "JN26le",
+        "IN97oi", "JN28qu", "JN14xc",
+    ]
+    .iter()
+    .map(|g| Locator::parse(g).unwrap())
+    .collect();
+    let modes = [
+        Mode::parse("LSB").unwrap(),
+        Mode::parse("USB").unwrap(),
+        Mode::parse("OLIVIA 8/250").unwrap(),
+    ];
+    let freqs = [3_598_000u64, 5_362_500, 7_098_000];
+    let t0 = DateTime::<Utc>::from_timestamp(1_759_536_000, 0).unwrap();
+    (0..n)
+        .map(|i| {
+            let a = (i % 12) as usize;
+            let b = ((i / 12) % 11 + 1) as usize;
+            let b = (a + b) % 12;
+            let outcome = [
+                Outcome::Worked,
+                Outcome::Worked,
+                Outcome::NoContact,
+                Outcome::Partial,
+            ][(i % 4) as usize];
+            let f = Frequency::from_hz(freqs[(i % 3) as usize]).unwrap();
+            Contact::new(ContactParts {
+                id: ContactId(Uuid::from_u128(seed + u128::from(i))),
+                drill: Some("Autumn exercise".into()),
+                own: StationSnapshot {
+                    call: calls[a].clone(),
+                    operator: None,
+                    locator: Some(grids[a]),
+                    power: Power::from_watts(20.0).ok(),
+                    antenna: Some("80/40 m link dipole".into()),
+                },
+                call: calls[b].clone(),
+                locator: Some(grids[b]),
+                start: t0 + chrono::Duration::seconds(i as i64 * 7),
+                end: None,
+                band: Band::containing(f).unwrap(),
+                frequency: Some(f),
+                mode: modes[(i % 3) as usize].clone(),
+                sent: Report::parse("57").ok(),
+                rcvd: if outcome == Outcome::NoContact {
+                    None
+                } else {
+                    Report::parse("55").ok()
+                },
+                other_power: None,
+                outcome,
+                via: None,
+                note: if i % 5 == 0 {
+                    "fading, repeated twice".into()
+                } else {
+                    String::new()
+                },
+                origin: Origin::LoggedHere,
+            })
+            .unwrap()
+        })
+        .collect()
+}
+
+fn main() {
+    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/bench-adif");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let now = DateTime::<Utc>::from_timestamp(1_764_590_400, 0).unwrap();
+
+    let records = 100_000u64;
+    let mut w = AdiWriter::new(Vec::new(), now).unwrap();
+    for c in contacts(records, 0) {
+        w.write(&c).unwrap();
+    }
+    let bytes = w.finish().unwrap();
+    let file = dir.join("drill-100k.adi");
+    std::fs::write(&file, &bytes).unwrap();
+    let mb = bytes.len() as f64 / 1e6;
+    println!("file: {records} records, {mb:.1} MB");
+
+    // Parse only, best of 5.
+    let mut best = f64::INFINITY;
+    for _ in 0..5 {
+        let t = Instant::now();
+        let (ok, bad) = transfer::parse_only(&bytes[..]).unwrap();
+        assert_eq!((ok, bad), (records as usize, 0));
+        best = best.min(t.elapsed().as_secs_f64());
+    }
+    let parse_mbs = mb / best;
+    println!(
+        "parse only:  {:8.1} ms  {parse_mbs:7.1} MB/s  (target >= 300 MB/s)",
+        best * 1e3
+    );
+
+    // Parse and check every record with the core types, no store.
+    let t = Instant::now();
+    let mut reader = nearsky::formats::adif::AdiReader::new(&bytes[..]);
+    let mut rec = nearsky::formats::adif::RawRecord::default();
+    let none = |_: &Callsign| None;
+    let ctx = nearsky::formats::adif::ImportContext {
+        station: None,
+        drill: None,
+        file: "bench.adi",
+        station_locator: &none,
+    };
+    let mut checked = 0;
+    while let nearsky::formats::adif::Next::Record = reader.next_record(&mut rec).unwrap() {
+        nearsky::formats::adif::to_contact(&rec, &ctx, || ContactId(Uuid::nil())).unwrap();
+        checked += 1;
+    }
+    let secs = t.elapsed().as_secs_f64();
+    println!(
+        "parse+check: {:8.1} ms  {:9.0} records/s ({checked} records, no store)",
+        secs * 1e3,
+        checked as f64 / secs
+    );
+
+    // Full import into a fresh logbook on disk: validation, duplicate checks, one transaction.
+    let mut book = Logbook::open(&dir.join("import.db")).unwrap();
+    let t = Instant::now();
+    let r =
+        transfer::import_file(&mut book, &file, &ImportOptions::default(), &mut |_| {}).unwrap();
+    let secs = t.elapsed().as_secs_f64();
+    assert_eq!(r.imported, records as usize);
+    println!(
+        "full import: {:8.1} ms  {:7.1} MB/s  {:9.0} records/s  (target >= 200,000 records/s)",
+        secs * 1e3,
+        mb / secs,
+        records as f64 / secs
+    );
+
+    // Export of 1,000,000 contacts.
+    let big = dir.join("export.db");
+    let mut book = Logbook::open(&big).unwrap();
+    book.add_drill(&nearsky::store::Drill {
+        name: "Autumn exercise".into(),
+        starts_at: None,
+        ends_at: None,
+        net_control: None,
+        description: String::new(),
+    })
+    .unwrap();
+    for chunk in 0..10u128 {
+        book.add_contacts(&contacts(100_000, 1_000_000 * (chunk + 1)))
+            .unwrap();
+    }
+    let t = Instant::now();
+    let mut sink = std::io::sink();
+    let n = transfer::export(
+        &book,
+        &ContactQuery::default(),
+        true,
+        ExportFormat::Adi,
+        &mut sink,
+        now,
+    )
+    .unwrap();
+    let secs = t.elapsed().as_secs_f64();
+    println!(
+        "export:      {n} contacts in {:.2} s, {:.0} records/s  (target: 1,000,000 in < 2 s)",
+        secs,
+        n as f64 / secs
+    );
+
+    // The independent Python reader on the same file.
+    match std::env::var("NEARSKY_ADIF_IO_PYTHON") {
+        Err(_) => {
+            println!("adif-io:     not timed (set NEARSKY_ADIF_IO_PYTHON to a Python with adif-io)")
+        }
+        Ok(py) => {
+            let code = "import sys,time,adif_io\nt=open(sys.argv[1],encoding='ascii',newline='').read()\ns=time.perf_counter()\nq,h=adif_io.read_from_string(t)\nprint(len(q), time.perf_counter()-s)";
+            let out = std::process::Command::new(py)
+                .arg("-c")
+                .arg(code)
+                .arg(&file)
+                .output()
+                .unwrap();
+            let text = String::from_utf8_lossy(&out.stdout);
+            let mut it = text.split_whitespace();
+            let (count, secs): (usize, f64) = (
+                it.next().and_then(|x| x.parse().ok()).unwrap_or(0),
+                it.next().and_then(|x| x.parse().ok()).unwrap_or(f64::NAN),
+            );
+            println!(
+                "adif-io:     {:8.1} ms  {:7.1} MB/s  ({count} records)",
+                secs * 1e3,
+                mb / secs
+            );
+            println!(
+                "ratio nearsky parse / adif-io: {:.0}x faster  (target >= 50x)",
+                secs / best
+            );
+        }
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}

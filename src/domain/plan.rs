@@ -1,0 +1,368 @@
+//! The next drill's band plan, from a drill's coverage.
+//!
+//! For each bin: a primary and an alternate band, ranked by the lower end of the 95 % Wilson
+//! interval of the worked proportion (evidence over luck: 9 of 10 ranks above 3 of 3). Ties
+//! are broken by the higher worked proportion, then the larger number of attempts, then the
+//! lower frequency. Bands with fewer than `min_attempts` attempts are not ranked. For the
+//! links that fail even on the primary band, the relay candidates: stations that worked both
+//! ends in that bin, ranked by the weaker of their two links.
+//!
+//! A plan for another date moves every bin with the Sun: a bin's time is expressed as a
+//! fraction of the day (sunrise to sunset) or of the night (sunset to sunrise) at the net's
+//! centre, and placed at the same fraction on the new date.
+
+use std::collections::{BTreeMap, BTreeSet, HashMap};
+
+use chrono::NaiveDate;
+use serde::{Deserialize, Serialize};
+
+use super::coverage::Coverage;
+use super::stats::{Z95, wilson};
+use super::sun;
+use super::{Band, LatLon};
+
+/// How a plan is made.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PlanConfig {
+    /// Fewer attempts than this on a band in a bin: "not enough evidence" for that band.
+    pub min_attempts: u32,
+    /// Plan for this date (bins shifted with the Sun); `None`: the drill's own hours.
+    pub for_date: Option<NaiveDate>,
+}
+
+impl Default for PlanConfig {
+    fn default() -> Self {
+        Self {
+            min_attempts: 4,
+            for_date: None,
+        }
+    }
+}
+
+/// The plan for one bin.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct PlanBin {
+    pub hour_start: String,
+    pub minutes: u16,
+    pub primary: Option<Band>,
+    pub alternate: Option<Band>,
+    /// Attempts in the evidence bin, all bands.
+    pub attempts: u32,
+    pub note: String,
+}
+
+/// A relay candidate for a link that is expected to fail.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RelayCandidate {
+    pub call: String,
+    /// The weaker of its two links: lower Wilson limit of the worked proportion.
+    pub strength: f64,
+}
+
+/// A link expected to fail in a bin even on the primary band.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct RelayNeed {
+    pub hour_start: String,
+    pub a: String,
+    pub b: String,
+    pub band: Band,
+    pub candidates: Vec<RelayCandidate>,
+}
+
+/// The plan for the next drill.
+#[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
+pub struct Plan {
+    /// The date the plan is for (`None`: the same hours as the drill).
+    pub for_date: Option<NaiveDate>,
+    /// The date of the drill the evidence comes from.
+    pub evidence_date: Option<NaiveDate>,
+    pub min_attempts: u32,
+    pub bins: Vec<PlanBin>,
+    pub relays: Vec<RelayNeed>,
+    /// How bands were ranked, in words.
+    pub ranking: String,
+}
+
+/// The ranking rule, as stated in the plan.
+pub const RANKING: &str = "bands ranked by the lower limit of the 95% Wilson interval of the worked proportion; ties: higher worked proportion, then more attempts, then the lower frequency";
+
+#[derive(Debug, Clone, Copy)]
+struct Ranked {
+    band: Band,
+    low: f64,
+    p: f64,
+    attempts: u32,
+}
+
+fn rank_bands(c: &Coverage, bin: usize, min_attempts: u32) -> Vec<Ranked> {
+    let mut r: Vec<Ranked> = c
+        .hours
+        .iter()
+        // A band that never worked in the bin is no choice, however often it was tried.
+        .filter(|h| h.bin == bin && h.attempts >= min_attempts && h.worked > 0)
+        .map(|h| Ranked {
+            band: h.band,
+            low: h.wilson_low,
+            p: f64::from(h.worked) / f64::from(h.attempts),
+            attempts: h.attempts,
+        })
+        .collect();
+    r.sort_by(|x, y| {
+        y.low
+            .total_cmp(&x.low)
+            .then(y.p.total_cmp(&x.p))
+            .then(y.attempts.cmp(&x.attempts))
+            .then(x.band.cmp(&y.band))
+    });
+    r
+}
+
+/// Strength of each link in a bin: its best band's lower Wilson limit (worked links only).
+fn link_strengths(c: &Coverage, bin: usize) -> HashMap<(String, String), f64> {
+    let mut out = HashMap::new();
+    for l in &c.links {
+        let best = l
+            .cells
+            .values()
+            .filter_map(|row| row.get(bin).cloned().flatten())
+            .filter(|cell| cell.worked > 0)
+            .filter_map(|cell| {
+                wilson(u64::from(cell.worked), u64::from(cell.attempts), Z95).map(|w| w.0)
+            })
+            .reduce(f64::max);
+        if let Some(s) = best {
+            out.insert((l.a.clone(), l.b.clone()), s);
+            out.insert((l.b.clone(), l.a.clone()), s);
+        }
+    }
+    out
+}
+
+fn plan_for_bin(c: &Coverage, bin: usize, cfg: &PlanConfig) -> (PlanBin, Vec<RelayNeed>) {
+    let attempts: u32 = c
+        .hours
+        .iter()
+        .filter(|h| h.bin == bin)
+        .map(|h| h.attempts)
+        .sum();
+    let ranked = rank_bands(c, bin, cfg.min_attempts);
+    let hour_start = c.config.hour_start(bin);
+    let describe = |r: &Ranked| {
+        let h = c.hour(r.band, bin);
+        let (w, n) = h.map_or((0, 0), |h| (h.worked, h.attempts));
+        format!("{} {w} of {n} worked (Wilson low {:.2})", r.band, r.low)
+    };
+    let note = match ranked.as_slice() {
+        [] if attempts == 0 => "no evidence: nothing was tried in this hour".to_string(),
+        [] if c
+            .hours
+            .iter()
+            .filter(|h| h.bin == bin)
+            .all(|h| h.worked == 0) =>
+        {
+            format!("no band worked: {attempts} attempts, all failed")
+        }
+        [] => format!(
+            "not enough evidence: {attempts} attempts, no band with at least {}",
+            cfg.min_attempts
+        ),
+        [p] => describe(p),
+        [p, a, ..] => format!("{}; alternate {}", describe(p), describe(a)),
+    };
+    let primary = ranked.first().map(|r| r.band);
+    let alternate = ranked.get(1).map(|r| r.band);
+    let mut relays = Vec::new();
+    if let Some(band) = primary {
+        let strengths = link_strengths(c, bin);
+        let stations: BTreeSet<&String> = c.links.iter().flat_map(|l| [&l.a, &l.b]).collect();
+        for l in &c.links {
+            let Some(Some(cell)) = l.cells.get(&band).and_then(|row| row.get(bin)) else {
+                continue;
+            };
+            if cell.worked > 0 || cell.attempts == 0 {
+                continue;
+            }
+            let mut candidates: Vec<RelayCandidate> = stations
+                .iter()
+                .filter(|s| ***s != l.a && ***s != l.b)
+                .filter_map(|s| {
+                    let x = strengths.get(&((*s).clone(), l.a.clone()))?;
+                    let y = strengths.get(&((*s).clone(), l.b.clone()))?;
+                    Some(RelayCandidate {
+                        call: (*s).clone(),
+                        strength: x.min(*y),
+                    })
+                })
+                .collect();
+            candidates.sort_by(|x, y| y.strength.total_cmp(&x.strength).then(x.call.cmp(&y.call)));
+            relays.push(RelayNeed {
+                hour_start: hour_start.clone(),
+                a: l.a.clone(),
+                b: l.b.clone(),
+                band,
+                candidates,
+            });
+        }
+    }
+    let minutes = c.config.bin_minutes;
+    (
+        PlanBin {
+            hour_start,
+            minutes,
+            primary,
+            alternate,
+            attempts,
+            note,
+        },
+        relays,
+    )
+}
+
+/// Fraction of the day (0..1, sunrise to sunset) or night (1..2, sunset to sunrise) of a
+/// minute of the UTC day, for a place and date. `None` in polar day or night.
+fn sun_phase(at: LatLon, date: NaiveDate, minute: f64) -> Option<(f64, f64, f64)> {
+    let d = sun::day(at, date);
+    let midnight = date.and_hms_opt(0, 0, 0)?.and_utc();
+    let rise = (d.sunrise.time()? - midnight).num_seconds() as f64 / 60.0;
+    let set = (d.sunset.time()? - midnight).num_seconds() as f64 / 60.0;
+    let rise = rise.rem_euclid(1440.0);
+    let day_len = (set - rise).rem_euclid(1440.0);
+    let t = (minute - rise).rem_euclid(1440.0);
+    let phase = if t < day_len {
+        t / day_len
+    } else {
+        1.0 + (t - day_len) / (1440.0 - day_len)
+    };
+    Some((phase, rise, day_len))
+}
+
+fn minute_at_phase(phase: f64, rise: f64, day_len: f64) -> f64 {
+    let t = if phase < 1.0 {
+        phase * day_len
+    } else {
+        day_len + (phase - 1.0) * (1440.0 - day_len)
+    };
+    (rise + t).rem_euclid(1440.0)
+}
+
+/// Makes the plan from a drill's coverage.
+pub fn make_plan(c: &Coverage, cfg: &PlanConfig) -> Plan {
+    let bins = c.config.bins();
+    let per_bin: Vec<(PlanBin, Vec<RelayNeed>)> =
+        (0..bins).map(|b| plan_for_bin(c, b, cfg)).collect();
+    let shift = match (cfg.for_date, c.first_date, c.centre) {
+        (Some(to), Some(from), Some(centre)) if to != from => Some((to, from, centre)),
+        _ => None,
+    };
+    let mut out_bins = Vec::with_capacity(bins);
+    let mut relays = Vec::new();
+    let bin_minutes = f64::from(c.config.bin_minutes);
+    for target in 0..bins {
+        let source = match shift {
+            None => target,
+            Some((to, from, centre)) => {
+                // Map the target bin's start, middle and end to the drill's date; of the bins
+                // that span covers, take the one with the most evidence (the middle's on ties).
+                let map = |minute: f64| match (
+                    sun_phase(centre, to, minute),
+                    sun_phase(centre, from, 0.0),
+                ) {
+                    (Some((phase, _, _)), Some((_, rise, day_len))) => {
+                        Some(minute_at_phase(phase, rise, day_len))
+                    }
+                    _ => None,
+                };
+                let start = target as f64 * bin_minutes;
+                match (
+                    map(start),
+                    map(start + bin_minutes / 2.0),
+                    map(start + bin_minutes - 0.01),
+                ) {
+                    (Some(s0), Some(mid), Some(s1)) => {
+                        let bin_of = |m: f64| ((m / bin_minutes) as usize).min(bins - 1);
+                        let (b0, bm, b1) = (bin_of(s0), bin_of(mid), bin_of(s1));
+                        let span: Vec<usize> = if b0 <= b1 {
+                            (b0..=b1).collect()
+                        } else {
+                            (b0..bins).chain(0..=b1).collect()
+                        };
+                        let weight = |b: usize| per_bin[b].0.attempts;
+                        span.into_iter()
+                            .max_by_key(|b| (weight(*b), *b == bm))
+                            .unwrap_or(bm)
+                    }
+                    _ => target,
+                }
+            }
+        };
+        let (mut pb, needs) = per_bin[source].clone();
+        let target_start = c.config.hour_start(target);
+        if source != target {
+            pb.note = format!(
+                "{} (evidence from {} UTC on the drill's date, moved with the Sun)",
+                pb.note, pb.hour_start
+            );
+        }
+        pb.hour_start = target_start.clone();
+        for mut n in needs {
+            n.hour_start = target_start.clone();
+            relays.push(n);
+        }
+        out_bins.push(pb);
+    }
+    Plan {
+        for_date: cfg.for_date,
+        evidence_date: c.first_date,
+        min_attempts: cfg.min_attempts,
+        bins: out_bins,
+        relays,
+        ranking: RANKING.to_string(),
+    }
+}
+
+/// The plan's bins merged into schedule slots: runs of bins with the same primary and
+/// alternate become one slot.
+pub fn schedule(plan: &Plan) -> Vec<ScheduleSlot> {
+    let mut out: Vec<ScheduleSlot> = Vec::new();
+    for b in &plan.bins {
+        let Some((h, m)) = b.hour_start.split_once(':') else { continue };
+        let (Ok(h), Ok(m)) = (h.parse::<u16>(), m.parse::<u16>()) else { continue };
+        let start = h * 60 + m;
+        match out.last_mut() {
+            Some(last) if last.primary == b.primary && last.alternate == b.alternate && last.start_minute + last.minutes == start => {
+                last.minutes += b.minutes;
+            }
+            _ => out.push(ScheduleSlot { start_minute: start, minutes: b.minutes, primary: b.primary, alternate: b.alternate, note: b.note.clone() }),
+        }
+    }
+    out
+}
+
+/// One slot of a drill's band schedule: from `start_minute` (UTC, minutes after midnight) for
+/// `minutes`, the band to use first and the one to fall back to.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScheduleSlot {
+    pub start_minute: u16,
+    pub minutes: u16,
+    pub primary: Option<Band>,
+    pub alternate: Option<Band>,
+    pub note: String,
+}
+
+impl ScheduleSlot {
+    /// Whether the slot covers a minute of the UTC day (slots may run past midnight).
+    pub fn covers(&self, minute_of_day: u16) -> bool {
+        let end = u32::from(self.start_minute) + u32::from(self.minutes);
+        let m = u32::from(minute_of_day);
+        (u32::from(self.start_minute)..end).contains(&m) || (end > 1440 && m < end - 1440)
+    }
+}
+
+/// Counts of the plan's primary bands, for summaries.
+pub fn primary_counts(plan: &Plan) -> BTreeMap<Band, usize> {
+    let mut m = BTreeMap::new();
+    for b in plan.bins.iter().filter_map(|b| b.primary) {
+        *m.entry(b).or_insert(0) += 1;
+    }
+    m
+}
