@@ -85,6 +85,19 @@ pub enum Command {
         after_help = "Examples:\n  nearsky export -o drill.adi\n  nearsky export --format csv --include-attempts -o drill.csv"
     )]
     Export(ExportArgs),
+    /// Which links worked on which band at which hour.
+    #[command(
+        after_help = "Examples:\n  nearsky coverage\n  nearsky coverage --view links --band 40m\n  nearsky coverage --view hours --format json"
+    )]
+    Coverage(CoverageArgs),
+    /// The band plan for the next drill, from this drill's evidence.
+    #[command(
+        after_help = "Examples:\n  nearsky plan\n  nearsky plan --for 2026-12-21 --format json > plan.json\n  nearsky drill new \"Winter exercise\" --plan plan.json"
+    )]
+    Plan(PlanArgs),
+    /// Where the stations' logs disagree (band, time, or outcome).
+    #[command(after_help = "Example:\n  nearsky crosscheck --drill \"Autumn exercise\"")]
+    Crosscheck(CrosscheckArgs),
     /// Internal: adds contacts in a loop for the reliability tests.
     #[command(hide = true, name = "__writer")]
     Writer(WriterArgs),
@@ -233,6 +246,9 @@ pub enum DrillCommand {
         /// Planned end, UTC.
         #[arg(long)]
         end: Option<String>,
+        /// Load the band schedule from a plan file (`nearsky plan --format json`).
+        #[arg(long, value_name = "FILE")]
+        plan: Option<PathBuf>,
     },
     /// List drills.
     List,
@@ -338,6 +354,73 @@ pub struct ExportArgs {
     /// Overwrite an existing output file.
     #[arg(long)]
     pub force: bool,
+}
+
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, clap::ValueEnum)]
+pub enum CoverageView {
+    Links,
+    #[default]
+    Hours,
+    Rings,
+}
+
+/// Output of the review commands.
+#[derive(Debug, Clone, Copy, Default, PartialEq, Eq, clap::ValueEnum)]
+pub enum ReviewFormat {
+    #[default]
+    Table,
+    Csv,
+    Json,
+    Md,
+}
+
+#[derive(Debug, Args)]
+pub struct CoverageArgs {
+    /// Drill name (default: the drill in use).
+    #[arg(long)]
+    pub drill: Option<String>,
+    /// Only this band.
+    #[arg(long)]
+    pub band: Option<String>,
+    #[arg(long, value_enum, default_value_t)]
+    pub view: CoverageView,
+    /// Width of the UTC hour bins in minutes (must divide 1440).
+    #[arg(long, default_value_t = 60)]
+    pub bin: u16,
+    /// Both sides' records within this many minutes are one contact.
+    #[arg(long, default_value_t = 10)]
+    pub tolerance: u16,
+    /// Sunspot number (12-month smoothed) for the Chapman foE estimate in the evidence.
+    #[arg(long)]
+    pub sunspots: Option<f64>,
+    #[arg(long, value_enum, default_value_t)]
+    pub format: ReviewFormat,
+}
+
+#[derive(Debug, Args)]
+pub struct PlanArgs {
+    #[arg(long)]
+    pub drill: Option<String>,
+    /// Plan for this date: hours move with sunrise and sunset at the net's centre.
+    #[arg(long = "for", value_name = "YYYY-MM-DD")]
+    pub for_date: Option<String>,
+    /// Fewer attempts than this on a band in an hour: not enough evidence.
+    #[arg(long, default_value_t = 4)]
+    pub min_attempts: u32,
+    #[arg(long, default_value_t = 60)]
+    pub bin: u16,
+    #[arg(long, value_enum, default_value_t)]
+    pub format: ReviewFormat,
+}
+
+#[derive(Debug, Args)]
+pub struct CrosscheckArgs {
+    #[arg(long)]
+    pub drill: Option<String>,
+    #[arg(long, default_value_t = 10)]
+    pub tolerance: u16,
+    #[arg(long, value_enum, default_value_t)]
+    pub format: TextOrJson,
 }
 
 #[derive(Debug, Args)]

@@ -435,6 +435,70 @@ pub fn delete(out: &mut impl Write, db: Option<&Path>, a: &DeleteArgs) -> Result
     Ok(())
 }
 
+/// Reads a plan written by `nearsky plan --format json` (or `--format csv`) as a schedule.
+fn read_plan(path: &Path) -> Result<Vec<crate::domain::plan::ScheduleSlot>, CliError> {
+    let text = std::fs::read_to_string(path)
+        .map_err(|e| usage(format!("--plan: {}: {e}", path.display())))?;
+    let plan: crate::domain::plan::Plan = match serde_json::from_str(&text) {
+        Ok(p) => p,
+        Err(json_err) => plan_from_csv(&text).map_err(|csv_err| {
+            usage(format!(
+                "--plan: {} is neither a JSON plan ({json_err}) nor a CSV plan ({csv_err})",
+                path.display()
+            ))
+        })?,
+    };
+    Ok(crate::domain::plan::schedule(&plan))
+}
+
+fn plan_from_csv(text: &str) -> Result<crate::domain::plan::Plan, String> {
+    let mut lines = text.lines();
+    let header = lines.next().ok_or("empty file")?;
+    if !header.starts_with("hour_start,minutes,primary,alternate") {
+        return Err("line 1: expected the header hour_start,minutes,primary,alternate,...".into());
+    }
+    let mut bins = Vec::new();
+    for (i, line) in lines.enumerate().filter(|(_, l)| !l.trim().is_empty()) {
+        let cols: Vec<&str> = line.splitn(6, ',').collect();
+        let n = i + 2;
+        let [hour, minutes, primary, alternate, attempts, ..] = cols.as_slice() else {
+            return Err(format!("line {n}: expected at least 5 columns"));
+        };
+        let band = |s: &str| {
+            if s.is_empty() {
+                Ok(None)
+            } else {
+                crate::domain::Band::parse(s)
+                    .map(Some)
+                    .map_err(|e| format!("line {n}: {e}"))
+            }
+        };
+        bins.push(crate::domain::plan::PlanBin {
+            hour_start: hour.to_string(),
+            minutes: minutes
+                .parse()
+                .map_err(|_| format!("line {n}: minutes `{minutes}` is not a number"))?,
+            primary: band(primary)?,
+            alternate: band(alternate)?,
+            attempts: attempts
+                .parse()
+                .map_err(|_| format!("line {n}: attempts `{attempts}` is not a number"))?,
+            note: cols
+                .get(5)
+                .map(|s| s.trim_matches('"').to_string())
+                .unwrap_or_default(),
+        });
+    }
+    Ok(crate::domain::plan::Plan {
+        for_date: None,
+        evidence_date: None,
+        min_attempts: 0,
+        bins,
+        relays: Vec::new(),
+        ranking: String::new(),
+    })
+}
+
 pub fn drill(
     out: &mut impl Write,
     db: Option<&Path>,
@@ -449,7 +513,9 @@ pub fn drill(
             description,
             start,
             end,
+            plan,
         } => {
+            let schedule = plan.as_deref().map(read_plan).transpose()?;
             let net_control = ncs
                 .as_deref()
                 .map(Callsign::parse)
@@ -473,6 +539,25 @@ pub fn drill(
             book.add_drill(&d).map_err(st)?;
             book.use_drill(&d.name).map_err(st)?;
             writeln!(out, "drill `{}` created and in use", d.name).map_err(io)?;
+            if let Some(slots) = schedule {
+                book.set_schedule(&d.name, &slots).map_err(st)?;
+                writeln!(out, "band schedule: {} slots from the plan", slots.len()).map_err(io)?;
+                for s in &slots {
+                    let b = |b: Option<crate::domain::Band>| {
+                        b.map_or("-".to_string(), |b| b.to_string())
+                    };
+                    writeln!(
+                        out,
+                        "  {:02}:{:02} for {:>4} min: {} (alternate {})",
+                        s.start_minute / 60,
+                        s.start_minute % 60,
+                        s.minutes,
+                        b(s.primary),
+                        b(s.alternate)
+                    )
+                    .map_err(io)?;
+                }
+            }
         }
         DrillCommand::List => {
             let current = book.current_drill().map_err(st)?;

@@ -3,6 +3,8 @@
 
 pub mod args;
 pub(crate) mod book;
+mod demo;
+mod review;
 mod sky;
 mod transfer;
 
@@ -75,7 +77,7 @@ fn run(cli: Cli) -> Result<(), CliError> {
     let now = chrono::Utc::now();
     let db = cli.db.as_deref();
     let result = match cli.command {
-        Some(Command::Demo(a)) => crate::demo::print_summary(&mut out, &a).map_err(CliError::from),
+        Some(Command::Demo(a)) => demo::demo(&mut out, db, &a),
         Some(Command::Path(a)) => sky::path(&mut out, &a, now),
         Some(Command::Sun(a)) => sky::sun(&mut out, &a, now),
         Some(Command::Log(a)) => book::log(&mut out, db, &a, now),
@@ -95,9 +97,10 @@ fn run(cli: Cli) -> Result<(), CliError> {
             Err(e) => Err(e),
         },
         Some(Command::Export(a)) => transfer::export(&mut out, db, &a, now),
-        None => {
-            crate::demo::print_summary(&mut out, &args::DemoArgs::default()).map_err(CliError::from)
-        }
+        Some(Command::Coverage(a)) => review::coverage(&mut out, db, &a),
+        Some(Command::Plan(a)) => review::plan(&mut out, db, &a),
+        Some(Command::Crosscheck(a)) => review::crosscheck(&mut out, db, &a),
+        None => demo::demo(&mut out, db, &args::DemoArgs::default()),
     };
     match result {
         // A closed pipe (`nearsky list | head`) is not a failure.

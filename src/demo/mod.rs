@@ -5,12 +5,14 @@
 //! around Maidenhead square JN17) was chosen only because it gives a realistic spread of NVIS
 //! distances.
 
+pub mod scenario;
+
 use std::io::Write;
 
-use crate::cli::args::DemoArgs;
 use crate::domain::geo;
 use crate::domain::skywave::{DAY_HEIGHT_KM, PathClass};
-use crate::domain::{Callsign, Locator};
+use crate::domain::{Band, Callsign, Frequency, Locator, Mode, Power};
+use crate::store::{Channel, Drill, Logbook, Note, RosterEntry, StationProfile, StoreError};
 
 /// One station of the invented net.
 #[derive(Debug, Clone)]
@@ -110,32 +112,99 @@ pub const STATIONS: [DemoStation; 12] = [
     },
 ];
 
-/// Prints what the demo net holds: each station with its distance, bearing and path class as
-/// seen from net control.
-pub fn print_summary(out: &mut impl Write, _args: &DemoArgs) -> anyhow::Result<()> {
-    writeln!(
-        out,
-        "nearsky demo drill (invented scenario; all call signs fictional, prefix Q)"
-    )?;
-    writeln!(out)?;
+/// The seed of the demo drill: the same seed gives the same logbook.
+pub const SEED: u64 = 20_251_004;
+
+/// Writes the demo drill into an empty logbook: the net control's own station, the roster,
+/// the channels, every station's log (net control's own records, the others' as imported
+/// files), the operators' notes, and a moved station.
+pub fn install(book: &mut Logbook, seed: u64) -> Result<scenario::Scenario, StoreError> {
+    let s = scenario::generate(seed);
+    let invalid = |e: String| StoreError::Invalid(e);
+    book.add_drill(&Drill {
+        name: scenario::DRILL_NAME.to_string(),
+        starts_at: Some(s.start),
+        ends_at: Some(s.start + chrono::Duration::hours(s.hours)),
+        net_control: Callsign::parse(STATIONS[0].call).ok(),
+        description: "Invented demo drill: a 24-hour NVIS sounding exercise of a flood-response net. Every call sign, name and event is fictional.".into(),
+    })?;
+    book.use_drill(scenario::DRILL_NAME)?;
     let ncs = &STATIONS[0];
-    let home = Locator::parse(ncs.locator)?;
-    writeln!(
-        out,
-        "Net control {} \"{}\" at {}, {} W",
-        Callsign::parse(ncs.call)?,
-        ncs.tactical,
-        home,
-        ncs.power_w
+    book.set_station(
+        &StationProfile {
+            call: Callsign::parse(ncs.call).map_err(|e| invalid(e.to_string()))?,
+            operator: None,
+            usual_power: Power::from_watts(ncs.power_w).ok(),
+            antenna: Some("NVIS dipole at 6 m".into()),
+            rig: Some("100 W HF transceiver, run at 50 W".into()),
+        },
+        Some((
+            Locator::parse(ncs.locator).map_err(|e| invalid(e.to_string()))?,
+            s.start - chrono::Duration::hours(2),
+        )),
     )?;
-    writeln!(out)?;
+    for st in &STATIONS[1..] {
+        book.roster_put(&RosterEntry {
+            call: Callsign::parse(st.call).map_err(|e| invalid(e.to_string()))?,
+            tactical: st.tactical.to_string(),
+            locator: Locator::parse(st.locator).ok(),
+            role: st.role.to_string(),
+        })?;
+    }
+    for (name, f, m) in scenario::CHANNELS {
+        let frequency = Frequency::parse(f).map_err(|e| invalid(e.to_string()))?;
+        let band = Band::containing(frequency).map_err(|e| invalid(e.to_string()))?;
+        book.add_channel(
+            scenario::DRILL_NAME,
+            &Channel {
+                name: name.to_string(),
+                band,
+                frequency,
+                mode: Mode::parse(m).map_err(|e| invalid(e.to_string()))?,
+            },
+        )?;
+    }
+    book.add_contacts(&s.contacts)?;
+    for (at, band, station, text) in &s.notes {
+        book.add_note(&Note {
+            id: uuid::Uuid::from_u128(u128::from(seed) << 32 | u128::from(at.timestamp() as u64)),
+            drill: Some(scenario::DRILL_NAME.to_string()),
+            at: *at,
+            band: *band,
+            station: Callsign::parse(station).map_err(|e| invalid(e.to_string()))?,
+            text: text.clone(),
+        })?;
+    }
+    for (call, _, locator) in &s.moves {
+        if let Some(mut e) = book.roster()?.into_iter().find(|e| e.call.as_str() == call) {
+            e.locator = Some(*locator);
+            e.role = format!("{} (moved during the drill)", e.role);
+            book.roster_put(&e)?;
+        }
+    }
+    Ok(s)
+}
+
+/// Prints the net: each station with its distance, bearing and path class from net control.
+pub fn print_net(out: &mut impl Write) -> std::io::Result<()> {
+    let ncs = &STATIONS[0];
+    let Ok(home) = Locator::parse(ncs.locator) else {
+        return Ok(());
+    };
     writeln!(
         out,
-        "{:<7} {:<13} {:<7} {:>7} {:>6} {:>5}  path (layer at {DAY_HEIGHT_KM} km)",
+        "Net control {} \"{}\" at {home}, {} W",
+        ncs.call, ncs.tactical, ncs.power_w
+    )?;
+    writeln!(
+        out,
+        "{:<7} {:<13} {:<7} {:>6} {:>4} {:>3}  path (layer at {DAY_HEIGHT_KM} km)",
         "call", "name", "grid", "km", "brg", "W"
     )?;
     for s in &STATIONS[1..] {
-        let l = Locator::parse(s.locator)?;
+        let Ok(l) = Locator::parse(s.locator) else {
+            continue;
+        };
         let p = geo::locator_path(&home, &l);
         let brg = p
             .centre
@@ -144,7 +213,7 @@ pub fn print_summary(out: &mut impl Write, _args: &DemoArgs) -> anyhow::Result<(
         let class = PathClass::of(p.centre.distance_km, DAY_HEIGHT_KM);
         writeln!(
             out,
-            "{:<7} {:<13} {:<7} {:>7.1} {:>6} {:>5}  {}",
+            "{:<7} {:<13} {:<7} {:>6.1} {:>4} {:>3}  {}",
             s.call,
             s.tactical,
             l,

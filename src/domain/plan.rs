@@ -325,14 +325,28 @@ pub fn make_plan(c: &Coverage, cfg: &PlanConfig) -> Plan {
 pub fn schedule(plan: &Plan) -> Vec<ScheduleSlot> {
     let mut out: Vec<ScheduleSlot> = Vec::new();
     for b in &plan.bins {
-        let Some((h, m)) = b.hour_start.split_once(':') else { continue };
-        let (Ok(h), Ok(m)) = (h.parse::<u16>(), m.parse::<u16>()) else { continue };
+        let Some((h, m)) = b.hour_start.split_once(':') else {
+            continue;
+        };
+        let (Ok(h), Ok(m)) = (h.parse::<u16>(), m.parse::<u16>()) else {
+            continue;
+        };
         let start = h * 60 + m;
         match out.last_mut() {
-            Some(last) if last.primary == b.primary && last.alternate == b.alternate && last.start_minute + last.minutes == start => {
+            Some(last)
+                if last.primary == b.primary
+                    && last.alternate == b.alternate
+                    && last.start_minute + last.minutes == start =>
+            {
                 last.minutes += b.minutes;
             }
-            _ => out.push(ScheduleSlot { start_minute: start, minutes: b.minutes, primary: b.primary, alternate: b.alternate, note: b.note.clone() }),
+            _ => out.push(ScheduleSlot {
+                start_minute: start,
+                minutes: b.minutes,
+                primary: b.primary,
+                alternate: b.alternate,
+                note: b.note.clone(),
+            }),
         }
     }
     out

@@ -1,0 +1,661 @@
+//! `nearsky coverage`, `nearsky plan`, `nearsky crosscheck`: the drill reviewed.
+//!
+//! Tables fit 80 columns and read without colour: cells carry glyphs (`W` worked, `p`
+//! partial, `x` nothing heard, `.` not tried; for groups `#` two thirds or more worked, `+`
+//! some worked, `x` none).
+
+use std::io::Write;
+use std::path::Path;
+
+use chrono::NaiveDate;
+use serde_json::json;
+
+use super::args::{CoverageArgs, CoverageView, CrosscheckArgs, PlanArgs, ReviewFormat, TextOrJson};
+use super::book::open;
+use super::{CliError, usage};
+use crate::domain::coverage::{Coverage, CoverageBuilder, CoverageConfig, OperatorNote};
+use crate::domain::plan::{Plan, PlanConfig, make_plan};
+use crate::domain::{Band, Outcome};
+use crate::store::{ContactQuery, Logbook};
+
+fn io(e: std::io::Error) -> CliError {
+    CliError::Failure(e.into())
+}
+
+fn drill_name(book: &Logbook, given: Option<&str>) -> Result<Option<String>, CliError> {
+    let fail = |e: crate::store::StoreError| CliError::Failure(e.into());
+    match given {
+        Some("all") => Ok(None),
+        Some(d) => {
+            if !book.drills().map_err(fail)?.iter().any(|x| x.name == d) {
+                return Err(usage(format!("--drill: drill `{d}` not found")));
+            }
+            Ok(Some(d.to_string()))
+        }
+        None => book.current_drill().map_err(fail),
+    }
+}
+
+/// Coverage of a drill (or of every contact), streamed from the logbook in time order.
+pub fn load_coverage(
+    book: &Logbook,
+    drill: Option<&str>,
+    config: CoverageConfig,
+) -> Result<Coverage, CliError> {
+    let mut b = CoverageBuilder::new(config).map_err(usage)?;
+    let q = ContactQuery {
+        drill: drill.map(str::to_string),
+        ..ContactQuery::default()
+    };
+    book.for_each_contact(&q, |s| {
+        b.add(&s.contact);
+        Ok(())
+    })
+    .map_err(|e| CliError::Failure(e.into()))?;
+    let notes: Vec<OperatorNote> = book
+        .notes(drill)
+        .map_err(|e| CliError::Failure(e.into()))?
+        .into_iter()
+        .map(|n| OperatorNote {
+            at: n.at,
+            band: n.band,
+            station: n.station.to_string(),
+            text: n.text,
+        })
+        .collect();
+    Ok(b.finish(&notes))
+}
+
+fn glyph(c: Option<&crate::domain::coverage::Cell>) -> char {
+    match c.and_then(|c| c.best()) {
+        None => '.',
+        Some(Outcome::Worked) => 'W',
+        Some(Outcome::Partial) => 'p',
+        Some(Outcome::NoContact) => 'x',
+    }
+}
+
+fn group_glyph(worked: u32, attempts: u32) -> char {
+    match (worked, attempts) {
+        (_, 0) => '.',
+        (0, _) => 'x',
+        (w, n) if 3 * w >= 2 * n => '#',
+        _ => '+',
+    }
+}
+
+/// Hour ruler for 24 one-character columns (every third hour labelled).
+fn ruler(bins: usize, bin_minutes: u16) -> String {
+    let mut s = String::new();
+    let mut i = 0;
+    while i < bins {
+        let hour = i * usize::from(bin_minutes) / 60;
+        if i % 3 == 0 {
+            let label = format!("{hour:02}");
+            s.push_str(&label);
+            i += label.len();
+            for _ in label.len()..3 {
+                if i < bins {
+                    s.push(' ');
+                    i += 1;
+                }
+            }
+        } else {
+            s.push(' ');
+            i += 1;
+        }
+    }
+    s
+}
+
+fn opt(x: Option<f64>, digits: usize) -> String {
+    x.map_or(String::new(), |v| format!("{v:.digits$}"))
+}
+
+pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Result<(), CliError> {
+    let book = open(db)?;
+    let drill = drill_name(&book, a.drill.as_deref())?;
+    let band = a
+        .band
+        .as_deref()
+        .map(Band::parse)
+        .transpose()
+        .map_err(|e| usage(format!("--band: {e}")))?;
+    let config = CoverageConfig {
+        bin_minutes: a.bin,
+        tolerance_minutes: a.tolerance,
+        sunspot_r12: a.sunspots,
+        ..CoverageConfig::default()
+    };
+    let c = load_coverage(&book, drill.as_deref(), config)?;
+    let bands: Vec<Band> = c
+        .bands
+        .iter()
+        .copied()
+        .filter(|b| band.is_none_or(|x| x == *b))
+        .collect();
+    match (a.view, a.format) {
+        (CoverageView::Hours, ReviewFormat::Json) => {
+            let rows: Vec<_> = c.hours.iter().filter(|h| bands.contains(&h.band)).map(|h| json!({
+                "band": h.band.name(), "hour_start": h.hour_start, "attempts": h.attempts, "worked": h.worked,
+                "partial": h.partial, "none": h.none, "wilson_low": h.wilson_low, "wilson_high": h.wilson_high,
+                "median_km": h.median_km, "max_km": h.max_km,
+            })).collect();
+            writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&rows).map_err(|e| CliError::Failure(e.into()))?
+            )
+            .map_err(io)?;
+        }
+        (CoverageView::Hours, ReviewFormat::Csv) => {
+            writeln!(out, "band,hour_start,attempts,worked,partial,none,wilson_low,wilson_high,median_km,max_km").map_err(io)?;
+            for h in c.hours.iter().filter(|h| bands.contains(&h.band)) {
+                writeln!(
+                    out,
+                    "{},{},{},{},{},{},{:.4},{:.4},{},{}",
+                    h.band,
+                    h.hour_start,
+                    h.attempts,
+                    h.worked,
+                    h.partial,
+                    h.none,
+                    h.wilson_low,
+                    h.wilson_high,
+                    opt(h.median_km, 1),
+                    opt(h.max_km, 1)
+                )
+                .map_err(io)?;
+            }
+        }
+        (CoverageView::Hours, fmt @ (ReviewFormat::Table | ReviewFormat::Md)) => {
+            let md = fmt == ReviewFormat::Md;
+            if md {
+                writeln!(
+                    out,
+                    "| UTC | {} |",
+                    bands
+                        .iter()
+                        .map(|b| b.name().to_string())
+                        .collect::<Vec<_>>()
+                        .join(" | ")
+                )
+                .map_err(io)?;
+                writeln!(out, "|---|{}", "---|".repeat(bands.len())).map_err(io)?;
+            } else {
+                writeln!(
+                    out,
+                    "worked/attempts and 95% Wilson interval of the worked share, per band"
+                )
+                .map_err(io)?;
+                let mut head = String::from("UTC  ");
+                for b in &bands {
+                    head.push_str(&format!(" {:<22}", b.name()));
+                }
+                writeln!(out, "{}", head.trim_end()).map_err(io)?;
+            }
+            for bin in 0..c.config.bins() {
+                if !c
+                    .hours
+                    .iter()
+                    .any(|h| h.bin == bin && bands.contains(&h.band))
+                {
+                    continue;
+                }
+                let cells: Vec<String> = bands
+                    .iter()
+                    .map(|b| match c.hour(*b, bin) {
+                        Some(h) => format!(
+                            "{:>3}/{:<3} {:.2}-{:.2}",
+                            h.worked, h.attempts, h.wilson_low, h.wilson_high
+                        ),
+                        None => "-".to_string(),
+                    })
+                    .collect();
+                if md {
+                    writeln!(
+                        out,
+                        "| {} | {} |",
+                        c.config.hour_start(bin),
+                        cells.join(" | ")
+                    )
+                    .map_err(io)?;
+                } else {
+                    let row: String = cells.iter().map(|s| format!(" {s:<22}")).collect();
+                    writeln!(out, "{}{}", c.config.hour_start(bin), row.trim_end()).map_err(io)?;
+                }
+            }
+            if !md {
+                let line = format!(
+                    "{} observations: {} confirmed by both sides, {} one-sided; {} contradictions (nearsky crosscheck)",
+                    c.observations,
+                    c.confirmed,
+                    c.one_sided,
+                    c.contradictions.len()
+                );
+                writeln!(out, "{}", wrap(&line, "", "  ")).map_err(io)?;
+            }
+        }
+        (CoverageView::Links, ReviewFormat::Json) => {
+            let rows: Vec<_> = c.links.iter().map(|l| json!({
+                "a": l.a, "b": l.b, "distance_km": l.distance_km, "bearing_deg": l.bearing_deg,
+                "bands": l.cells.iter().filter(|(b, _)| bands.contains(b)).map(|(b, cells)| (b.name().to_string(), serde_json::Value::Array(cells.iter().enumerate().filter_map(|(i, cell)| cell.as_ref().map(|cell| json!({
+                    "hour_start": c.config.hour_start(i), "attempts": cell.attempts, "worked": cell.worked, "partial": cell.partial, "none": cell.none, "best_report": cell.best_report, "confirmed": cell.confirmed,
+                }))).collect::<Vec<_>>()))).collect::<serde_json::Map<_, _>>(),
+            })).collect();
+            writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&rows).map_err(|e| CliError::Failure(e.into()))?
+            )
+            .map_err(io)?;
+        }
+        (CoverageView::Links, ReviewFormat::Csv) => {
+            writeln!(out, "a,b,distance_km,bearing_deg,band,hour_start,attempts,worked,partial,none,best_report,confirmed").map_err(io)?;
+            for l in &c.links {
+                for (b, cells) in l.cells.iter().filter(|(b, _)| bands.contains(b)) {
+                    for (i, cell) in cells.iter().enumerate() {
+                        if let Some(cell) = cell {
+                            writeln!(
+                                out,
+                                "{},{},{},{},{},{},{},{},{},{},{},{}",
+                                l.a,
+                                l.b,
+                                opt(l.distance_km, 1),
+                                opt(l.bearing_deg, 0),
+                                b,
+                                c.config.hour_start(i),
+                                cell.attempts,
+                                cell.worked,
+                                cell.partial,
+                                cell.none,
+                                cell.best_report.clone().unwrap_or_default(),
+                                cell.confirmed
+                            )
+                            .map_err(io)?;
+                        }
+                    }
+                }
+            }
+        }
+        (CoverageView::Links, fmt @ (ReviewFormat::Table | ReviewFormat::Md)) => {
+            let fence = fmt == ReviewFormat::Md;
+            for b in &bands {
+                if fence {
+                    writeln!(out, "### {b}\n\n```").map_err(io)?;
+                } else {
+                    writeln!(
+                        out,
+                        "{b}: W worked, p partial, x nothing heard, . not tried (UTC hours)"
+                    )
+                    .map_err(io)?;
+                }
+                writeln!(
+                    out,
+                    "{:<15} {:>5} {:>4} {}",
+                    "link",
+                    "km",
+                    "brg",
+                    ruler(c.config.bins(), c.config.bin_minutes)
+                )
+                .map_err(io)?;
+                for l in c.links.iter().filter(|l| l.cells.contains_key(b)) {
+                    let row: String = l.cells[b].iter().map(|cell| glyph(cell.as_ref())).collect();
+                    let name = format!("{}-{}", l.a, l.b);
+                    writeln!(
+                        out,
+                        "{:<15} {:>5} {:>4} {row}",
+                        truncate(&name, 15),
+                        opt(l.distance_km, 0),
+                        opt(l.bearing_deg, 0)
+                    )
+                    .map_err(io)?;
+                }
+                writeln!(out, "{}", if fence { "```\n" } else { "" }).map_err(io)?;
+            }
+        }
+        (CoverageView::Rings, ReviewFormat::Json) => {
+            let rows: Vec<_> = c.rings.iter().filter(|r| bands.contains(&r.band)).map(|r| json!({
+                "band": r.band.name(), "ring_km": r.ring, "hour_start": r.hour_start, "attempts": r.attempts, "worked": r.worked,
+            })).collect();
+            writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&rows).map_err(|e| CliError::Failure(e.into()))?
+            )
+            .map_err(io)?;
+        }
+        (CoverageView::Rings, ReviewFormat::Csv) => {
+            writeln!(out, "band,ring_km,hour_start,attempts,worked").map_err(io)?;
+            for r in c.rings.iter().filter(|r| bands.contains(&r.band)) {
+                writeln!(
+                    out,
+                    "{},{},{},{},{}",
+                    r.band, r.ring, r.hour_start, r.attempts, r.worked
+                )
+                .map_err(io)?;
+            }
+        }
+        (CoverageView::Rings, fmt @ (ReviewFormat::Table | ReviewFormat::Md)) => {
+            let fence = fmt == ReviewFormat::Md;
+            let labels = c.config.ring_labels();
+            for b in &bands {
+                if fence {
+                    writeln!(out, "### {b}\n\n```").map_err(io)?;
+                } else {
+                    writeln!(out, "{b}: # most worked, + some, x none, . not tried (near rings failing while\n  far ones work: a skip zone)").map_err(io)?;
+                }
+                writeln!(
+                    out,
+                    "{:<10} {}",
+                    "ring km",
+                    ruler(c.config.bins(), c.config.bin_minutes)
+                )
+                .map_err(io)?;
+                for label in &labels {
+                    let row: String = (0..c.config.bins())
+                        .map(|bin| {
+                            let r = c
+                                .rings
+                                .iter()
+                                .find(|r| r.band == *b && r.bin == bin && &r.ring == label);
+                            r.map_or('.', |r| group_glyph(r.worked, r.attempts))
+                        })
+                        .collect();
+                    writeln!(out, "{label:<10} {row}").map_err(io)?;
+                }
+                writeln!(out, "{}", if fence { "```\n" } else { "" }).map_err(io)?;
+            }
+        }
+    }
+    if a.view == CoverageView::Hours && a.format == ReviewFormat::Table && !c.evidence.is_empty() {
+        writeln!(out, "\nevidence per hour:").map_err(io)?;
+        for e in &c.evidence {
+            let sun = e.sun_elevation_deg.map_or(String::new(), |s| {
+                format!(
+                    " [sun {s:.0} deg, {}]",
+                    e.daylight.map_or("", |d| d.words())
+                )
+            });
+            writeln!(out, "{}", wrap(&format!("{}{sun}", e.note), "  ", "      ")).map_err(io)?;
+            if let Some(f) = e.foe_expected_mhz {
+                writeln!(
+                    out,
+                    "    expected foE (Chapman, sunspots given): {f:.1} MHz"
+                )
+                .map_err(io)?;
+            }
+            for (t, b, st, text) in &e.operator_notes {
+                let band = b.map_or(String::new(), |b| format!(" {b}"));
+                let line = format!(
+                    "note {} {st}{band}: {}",
+                    t.format("%H:%M"),
+                    crate::domain::text::visible(text)
+                );
+                writeln!(out, "{}", wrap(&line, "    ", "      ")).map_err(io)?;
+            }
+        }
+    }
+    Ok(())
+}
+
+/// Word-wraps `text` to 80 columns: the first line after `first`, the others after `rest`.
+pub(crate) fn wrap(text: &str, first: &str, rest: &str) -> String {
+    let mut out = String::from(first);
+    let mut col = first.chars().count();
+    let mut at_start = true;
+    for word in text.split(' ').filter(|w| !w.is_empty()) {
+        let len = word.chars().count();
+        if !at_start && col + 1 + len > 80 {
+            out.push('\n');
+            out.push_str(rest);
+            col = rest.chars().count();
+            at_start = true;
+        }
+        if !at_start {
+            out.push(' ');
+            col += 1;
+        }
+        out.push_str(word);
+        col += len;
+        at_start = false;
+    }
+    out
+}
+
+fn truncate(s: &str, n: usize) -> String {
+    s.chars().take(n).collect()
+}
+
+pub fn plan_of(
+    book: &Logbook,
+    drill: Option<&str>,
+    bin: u16,
+    min_attempts: u32,
+    for_date: Option<NaiveDate>,
+) -> Result<Plan, CliError> {
+    let c = load_coverage(
+        book,
+        drill,
+        CoverageConfig {
+            bin_minutes: bin,
+            ..CoverageConfig::default()
+        },
+    )?;
+    Ok(make_plan(
+        &c,
+        &PlanConfig {
+            min_attempts,
+            for_date,
+        },
+    ))
+}
+
+pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(), CliError> {
+    let book = open(db)?;
+    let drill = drill_name(&book, a.drill.as_deref())?;
+    let for_date = a
+        .for_date
+        .as_deref()
+        .map(|d| {
+            NaiveDate::parse_from_str(d.trim(), "%Y-%m-%d")
+                .map_err(|_| usage(format!("--for: `{d}` is not a date (YYYY-MM-DD)")))
+        })
+        .transpose()?;
+    let p = plan_of(&book, drill.as_deref(), a.bin, a.min_attempts, for_date)?;
+    let name = |b: Option<Band>| b.map_or(String::new(), |b| b.name().to_string());
+    match a.format {
+        ReviewFormat::Json => {
+            writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&p).map_err(|e| CliError::Failure(e.into()))?
+            )
+            .map_err(io)?;
+        }
+        ReviewFormat::Csv => {
+            writeln!(out, "hour_start,minutes,primary,alternate,attempts,note").map_err(io)?;
+            for b in &p.bins {
+                writeln!(
+                    out,
+                    "{},{},{},{},{},\"{}\"",
+                    b.hour_start,
+                    b.minutes,
+                    name(b.primary),
+                    name(b.alternate),
+                    b.attempts,
+                    b.note.replace('"', "\"\"")
+                )
+                .map_err(io)?;
+            }
+        }
+        ReviewFormat::Md => {
+            writeln!(
+                out,
+                "| UTC | primary | alternate | attempts | evidence |\n|---|---|---|---|---|"
+            )
+            .map_err(io)?;
+            for b in &p.bins {
+                writeln!(
+                    out,
+                    "| {} | {} | {} | {} | {} |",
+                    b.hour_start,
+                    name(b.primary),
+                    name(b.alternate),
+                    b.attempts,
+                    b.note
+                )
+                .map_err(io)?;
+            }
+            if !p.relays.is_empty() {
+                writeln!(
+                    out,
+                    "\n| UTC | link | on | relay candidates |\n|---|---|---|---|"
+                )
+                .map_err(io)?;
+                for r in &p.relays {
+                    let cands: Vec<String> = r
+                        .candidates
+                        .iter()
+                        .map(|c| format!("{} ({:.2})", c.call, c.strength))
+                        .collect();
+                    writeln!(
+                        out,
+                        "| {} | {}–{} | {} | {} |",
+                        r.hour_start,
+                        r.a,
+                        r.b,
+                        r.band,
+                        if cands.is_empty() {
+                            "none".into()
+                        } else {
+                            cands.join(", ")
+                        }
+                    )
+                    .map_err(io)?;
+                }
+            }
+            writeln!(out, "\n{}", p.ranking).map_err(io)?;
+        }
+        ReviewFormat::Table => {
+            let when = p.for_date.map_or("the same hours".to_string(), |d| {
+                format!("{d} (hours moved with the Sun)")
+            });
+            writeln!(
+                out,
+                "{}",
+                wrap(&format!("plan for {when}; {}", p.ranking), "", "  ")
+            )
+            .map_err(io)?;
+            writeln!(
+                out,
+                "{:<5} {:<7} {:<9} {:>4}  evidence",
+                "UTC", "primary", "alternate", "n"
+            )
+            .map_err(io)?;
+            for b in &p.bins {
+                writeln!(
+                    out,
+                    "{:<5} {:<7} {:<9} {:>4}  {}",
+                    b.hour_start,
+                    name(b.primary),
+                    name(b.alternate),
+                    b.attempts,
+                    truncate(&b.note, 49)
+                )
+                .map_err(io)?;
+            }
+            if !p.relays.is_empty() {
+                writeln!(
+                    out,
+                    "\nlinks expected to fail even on the primary band, and who could relay:"
+                )
+                .map_err(io)?;
+                for r in &p.relays {
+                    let cands: Vec<String> = r
+                        .candidates
+                        .iter()
+                        .take(3)
+                        .map(|c| format!("{} ({:.2})", c.call, c.strength))
+                        .collect();
+                    let line = format!(
+                        "{} {}-{} on {}: {}",
+                        r.hour_start,
+                        r.a,
+                        r.b,
+                        r.band,
+                        if cands.is_empty() {
+                            "no relay candidate".into()
+                        } else {
+                            cands.join(", ")
+                        }
+                    );
+                    writeln!(out, "{}", wrap(&line, "  ", "      ")).map_err(io)?;
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+pub fn crosscheck(
+    out: &mut impl Write,
+    db: Option<&Path>,
+    a: &CrosscheckArgs,
+) -> Result<(), CliError> {
+    let book = open(db)?;
+    let drill = drill_name(&book, a.drill.as_deref())?;
+    let c = load_coverage(
+        &book,
+        drill.as_deref(),
+        CoverageConfig {
+            tolerance_minutes: a.tolerance,
+            ..CoverageConfig::default()
+        },
+    )?;
+    match a.format {
+        TextOrJson::Json => {
+            let v = json!({
+                "observations": c.observations, "confirmed": c.confirmed, "one_sided": c.one_sided,
+                "contradictions": c.contradictions,
+            });
+            writeln!(
+                out,
+                "{}",
+                serde_json::to_string_pretty(&v).map_err(|e| CliError::Failure(e.into()))?
+            )
+            .map_err(io)?;
+        }
+        TextOrJson::Text => {
+            let line = format!(
+                "{} observations: {} confirmed by both sides, {} one-sided (tolerance {} min)",
+                c.observations, c.confirmed, c.one_sided, a.tolerance
+            );
+            writeln!(out, "{}", wrap(&line, "", "  ")).map_err(io)?;
+            if c.contradictions.is_empty() {
+                writeln!(out, "no contradictions").map_err(io)?;
+            }
+            for x in &c.contradictions {
+                let kind = match x.kind {
+                    crate::domain::coverage::ContradictionKind::Band => "band",
+                    crate::domain::coverage::ContradictionKind::Time => "time",
+                    crate::domain::coverage::ContradictionKind::Outcome => "outcome",
+                };
+                writeln!(
+                    out,
+                    "{}",
+                    wrap(&x.message, &format!("{kind:<8} "), "         ")
+                )
+                .map_err(io)?;
+                writeln!(
+                    out,
+                    "         contacts {} and {}",
+                    &x.ids[0].to_string()[..8],
+                    &x.ids[1].to_string()[..8]
+                )
+                .map_err(io)?;
+            }
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,259 @@
+//! The demo drill: deterministic, and its coverage and plan show what the scenario builds in.
+
+use std::process::Command;
+
+use nearsky::demo::scenario::{DRILL_NAME, generate};
+use nearsky::domain::coverage::{ContradictionKind, CoverageConfig, OperatorNote, coverage};
+use nearsky::domain::plan::{PlanConfig, make_plan};
+use nearsky::domain::{Band, Outcome};
+
+#[test]
+fn the_same_seed_gives_the_same_drill() {
+    let (a, b) = (generate(7), generate(7));
+    assert_eq!(a.contacts, b.contacts);
+    assert_eq!(a.notes, b.notes);
+    assert_ne!(generate(8).contacts, a.contacts);
+}
+
+#[test]
+fn the_demo_follows_the_physics_it_was_built_on() {
+    let s = generate(nearsky::demo::SEED);
+    let calls: std::collections::BTreeSet<&str> =
+        s.contacts.iter().map(|c| c.own.call.as_str()).collect();
+    assert!(
+        (10..=14).contains(&calls.len()),
+        "{} stations log",
+        calls.len()
+    );
+    assert!(calls.iter().all(|c| c.starts_with('Q')));
+    assert!(
+        s.contacts.iter().any(|c| c.outcome == Outcome::NoContact),
+        "failed attempts are logged"
+    );
+    let notes: Vec<OperatorNote> = s
+        .notes
+        .iter()
+        .map(|(at, band, st, text)| OperatorNote {
+            at: *at,
+            band: *band,
+            station: st.clone(),
+            text: text.clone(),
+        })
+        .collect();
+    let c = coverage(&s.contacts, &notes, CoverageConfig::default()).unwrap();
+    assert_eq!(c.bands, vec![Band::B80m, Band::B60m, Band::B40m]);
+    assert!(
+        c.confirmed > 200 && c.one_sided > 200,
+        "both sides' logs: {} confirmed, {} one-sided",
+        c.confirmed,
+        c.one_sided
+    );
+    for kind in [
+        ContradictionKind::Band,
+        ContradictionKind::Time,
+        ContradictionKind::Outcome,
+    ] {
+        assert!(
+            c.contradictions.iter().any(|x| x.kind == kind),
+            "a {kind:?} contradiction"
+        );
+    }
+    let plan = make_plan(&c, &PlanConfig::default());
+    // Deep night (00–04 UTC, Sun below −25°): 80 m first.
+    for bin in 0..4 {
+        assert_eq!(
+            plan.bins[bin].primary,
+            Some(Band::B80m),
+            "{bin:02}:00 {}",
+            plan.bins[bin].note
+        );
+    }
+    // Midday (10–13 UTC): 40 m first, and 80 m absorbed.
+    for bin in 10..13 {
+        assert_eq!(
+            plan.bins[bin].primary,
+            Some(Band::B40m),
+            "{bin:02}:00 {}",
+            plan.bins[bin].note
+        );
+        let h80 = c.hour(Band::B80m, bin).unwrap();
+        assert!(
+            h80.worked * 3 < h80.attempts,
+            "80 m absorbed at {bin:02}:00"
+        );
+    }
+    // 60 m in between: first or second at the twilight hours.
+    let twilight_60 = (5..9)
+        .chain(17..20)
+        .filter(|b| {
+            plan.bins[*b].primary == Some(Band::B60m) || plan.bins[*b].alternate == Some(Band::B60m)
+        })
+        .count();
+    assert!(
+        twilight_60 >= 5,
+        "60 m at twilight: {twilight_60} of 7 hours"
+    );
+    // 40 m at night: near links fail while far ones still work in some hour (a skip zone).
+    let skip = c
+        .evidence
+        .iter()
+        .filter(|e| e.note.contains("40 m skips over near stations"))
+        .count();
+    assert!(skip >= 1, "a 40 m skip zone");
+    // Operators' notes are attached to their hours; a station moved.
+    assert!(c.evidence.iter().any(|e| !e.operator_notes.is_empty()));
+    assert_eq!(s.moves.len(), 1);
+    let mover = &s.moves[0];
+    let locs: std::collections::BTreeSet<String> = s
+        .contacts
+        .iter()
+        .filter(|x| x.own.call.as_str() == mover.0)
+        .filter_map(|x| x.own.locator.map(|l| l.to_string()))
+        .collect();
+    assert_eq!(locs.len(), 2, "{locs:?}");
+    assert!(
+        plan.relays.iter().any(|r| !r.candidates.is_empty()),
+        "relay candidates for failing links"
+    );
+}
+
+fn nearsky(args: &[&str]) -> (i32, String, String) {
+    let out = Command::new(env!("CARGO_BIN_EXE_nearsky"))
+        .args(args)
+        .output()
+        .unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+#[test]
+fn the_demo_command_creates_reuses_and_never_overwrites() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("demo.db");
+    let d = db.to_str().unwrap();
+    let (code, out, err) = nearsky(&["--db", d, "demo", "--no-ui"]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        out.contains("created the demo logbook") && out.contains(DRILL_NAME),
+        "{out}"
+    );
+    let (code, out, _) = nearsky(&["--db", d, "demo", "--no-ui"]);
+    assert_eq!(code, 0);
+    assert!(out.contains("using the demo logbook"), "{out}");
+    // Another logbook at that path is never overwritten without --force.
+    let other = dir.path().join("mine.db");
+    let o = other.to_str().unwrap();
+    assert_eq!(
+        nearsky(&[
+            "--db", o, "station", "set", "--call", "Q3NET", "--grid", "JN17ga"
+        ])
+        .0,
+        0
+    );
+    let (code, _, err) = nearsky(&["--db", o, "demo", "--no-ui"]);
+    assert_eq!(code, 2);
+    assert!(err.contains("not the demo logbook"), "{err}");
+    let before = std::fs::read(&other).unwrap();
+    assert_eq!(std::fs::read(&other).unwrap(), before);
+    // Two fresh demos are the same logbook, record for record.
+    let db2 = dir.path().join("demo2.db");
+    nearsky(&["--db", db2.to_str().unwrap(), "demo", "--no-ui"]);
+    let list = |p: &str| nearsky(&["--db", p, "export", "--include-attempts", "--format", "csv"]).1;
+    assert_eq!(list(d), list(db2.to_str().unwrap()));
+}
+
+#[test]
+fn review_commands_on_the_demo() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("demo.db");
+    let d = db.to_str().unwrap();
+    nearsky(&["--db", d, "demo", "--no-ui"]);
+    let (code, out, err) = nearsky(&["--db", d, "coverage", "--view", "hours", "--format", "json"]);
+    assert_eq!(code, 0, "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let rows = v.as_array().unwrap();
+    assert_eq!(rows.len(), 72, "3 bands × 24 hours");
+    for key in [
+        "band",
+        "hour_start",
+        "attempts",
+        "worked",
+        "partial",
+        "none",
+        "wilson_low",
+        "wilson_high",
+        "median_km",
+        "max_km",
+    ] {
+        assert!(rows[0].get(key).is_some(), "{key}");
+    }
+    assert!(
+        rows.iter()
+            .any(|r| r["band"] == "40m" && r["hour_start"] == "12:00")
+    );
+    for view in ["links", "hours", "rings"] {
+        let (code, out, _) = nearsky(&["--db", d, "coverage", "--view", view]);
+        assert_eq!(code, 0);
+        assert!(
+            out.lines().all(|l| l.chars().count() <= 80),
+            "{view} fits 80 columns:\n{out}"
+        );
+    }
+    let (_, out, _) = nearsky(&["--db", d, "plan", "--format", "json"]);
+    let p: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(p["bins"].as_array().unwrap().len(), 24);
+    for key in ["hour_start", "primary", "alternate", "attempts", "note"] {
+        assert!(p["bins"][0].get(key).is_some(), "{key}");
+    }
+    assert!(p["relays"].is_array());
+    let (_, table, _) = nearsky(&["--db", d, "plan"]);
+    assert!(table.lines().all(|l| l.chars().count() <= 80), "{table}");
+    let (_, cc, _) = nearsky(&["--db", d, "crosscheck"]);
+    assert!(
+        cc.contains("confirmed by both sides") && cc.contains("clock may be wrong"),
+        "{cc}"
+    );
+    // A plan for another date, loaded as the schedule of the next drill.
+    let plan_file = dir.path().join("plan.json");
+    let (code, out, _) = nearsky(&["--db", d, "plan", "--for", "2025-12-21", "--format", "json"]);
+    assert_eq!(code, 0);
+    std::fs::write(&plan_file, out).unwrap();
+    let (code, out, err) = nearsky(&[
+        "--db",
+        d,
+        "drill",
+        "new",
+        "Winter exercise",
+        "--plan",
+        plan_file.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("band schedule:"), "{out}");
+    let book = nearsky::store::Logbook::open(&db).unwrap();
+    let slots = book.schedule("Winter exercise").unwrap();
+    assert!(!slots.is_empty());
+    assert_eq!(
+        slots.iter().map(|s| u32::from(s.minutes)).sum::<u32>(),
+        1440,
+        "the schedule covers the day"
+    );
+    let (code, _, err) = nearsky(&["--db", d, "plan", "--for", "21.12.2025"]);
+    assert_eq!(code, 2);
+    assert!(err.contains("`21.12.2025`"), "{err}");
+    let bad = dir.path().join("bad.json");
+    std::fs::write(&bad, "{ not a plan").unwrap();
+    let (code, _, err) = nearsky(&[
+        "--db",
+        d,
+        "drill",
+        "new",
+        "Bad",
+        "--plan",
+        bad.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 2);
+    assert!(err.contains("neither a JSON plan"), "{err}");
+}
