@@ -9,3 +9,4 @@ pub mod demo;
 pub mod domain;
 pub mod formats;
 pub mod store;
+pub mod tui;

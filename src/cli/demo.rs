@@ -70,6 +70,12 @@ pub fn prepare(out: &mut impl Write, db: Option<&Path>, force: bool) -> Result<P
 
 pub fn demo(out: &mut impl Write, db: Option<&Path>, a: &DemoArgs) -> Result<(), CliError> {
     let path = prepare(out, db, a.force)?;
+    use std::io::IsTerminal;
+    if !a.no_ui && std::io::stdout().is_terminal() && std::io::stdin().is_terminal() {
+        let book = Logbook::open(&path).map_err(|e| CliError::Failure(e.into()))?;
+        return crate::tui::run(book, Some(crate::app::ui::Screen::Review))
+            .map_err(CliError::Failure);
+    }
     writeln!(
         out,
         "\nnearsky demo drill: \"{}\"",

@@ -100,7 +100,11 @@ fn run(cli: Cli) -> Result<(), CliError> {
         Some(Command::Coverage(a)) => review::coverage(&mut out, db, &a),
         Some(Command::Plan(a)) => review::plan(&mut out, db, &a),
         Some(Command::Crosscheck(a)) => review::crosscheck(&mut out, db, &a),
-        None => demo::demo(&mut out, db, &args::DemoArgs::default()),
+        None => {
+            let book = book::open(db)?;
+            drop(out);
+            crate::tui::run(book, None).map_err(CliError::Failure)
+        }
     };
     match result {
         // A closed pipe (`nearsky list | head`) is not a failure.

@@ -13,10 +13,10 @@ use serde_json::json;
 use super::args::{CoverageArgs, CoverageView, CrosscheckArgs, PlanArgs, ReviewFormat, TextOrJson};
 use super::book::open;
 use super::{CliError, usage};
-use crate::domain::coverage::{Coverage, CoverageBuilder, CoverageConfig, OperatorNote};
+use crate::domain::coverage::{Coverage, CoverageConfig};
 use crate::domain::plan::{Plan, PlanConfig, make_plan};
 use crate::domain::{Band, Outcome};
-use crate::store::{ContactQuery, Logbook};
+use crate::store::Logbook;
 
 fn io(e: std::io::Error) -> CliError {
     CliError::Failure(e.into())
@@ -36,34 +36,16 @@ fn drill_name(book: &Logbook, given: Option<&str>) -> Result<Option<String>, Cli
     }
 }
 
-/// Coverage of a drill (or of every contact), streamed from the logbook in time order.
+/// Coverage of a drill, for the commands.
 pub fn load_coverage(
     book: &Logbook,
     drill: Option<&str>,
     config: CoverageConfig,
 ) -> Result<Coverage, CliError> {
-    let mut b = CoverageBuilder::new(config).map_err(usage)?;
-    let q = ContactQuery {
-        drill: drill.map(str::to_string),
-        ..ContactQuery::default()
-    };
-    book.for_each_contact(&q, |s| {
-        b.add(&s.contact);
-        Ok(())
+    crate::app::review::load_coverage(book, drill, config).map_err(|e| match e {
+        crate::app::review::ReviewError::Config(c) => usage(c),
+        other => CliError::Failure(other.into()),
     })
-    .map_err(|e| CliError::Failure(e.into()))?;
-    let notes: Vec<OperatorNote> = book
-        .notes(drill)
-        .map_err(|e| CliError::Failure(e.into()))?
-        .into_iter()
-        .map(|n| OperatorNote {
-            at: n.at,
-            band: n.band,
-            station: n.station.to_string(),
-            text: n.text,
-        })
-        .collect();
-    Ok(b.finish(&notes))
 }
 
 fn glyph(c: Option<&crate::domain::coverage::Cell>) -> char {
