@@ -155,6 +155,34 @@ impl Entry {
         }
     }
 
+    /// Keeps band and frequency consistent when one of them is typed: a suggested value of
+    /// the other follows (or is cleared).
+    fn follow_radio(&mut self, typed: Field) {
+        let (fi, bi) = (Self::idx(Field::Frequency), Self::idx(Field::Band));
+        match typed {
+            Field::Frequency => {
+                if let Ok(b) = Frequency::parse(&self.values[fi]).and_then(|f| {
+                    Band::containing(f).map_err(|_| crate::domain::FrequencyError::Empty)
+                }) && (self.auto[bi] || self.values[bi].is_empty())
+                {
+                    self.values[bi] = b.to_string();
+                    self.auto[bi] = true;
+                }
+            }
+            Field::Band if self.auto[fi] => {
+                let same = Band::parse(&self.values[bi])
+                    .ok()
+                    .zip(Frequency::parse(&self.values[fi]).ok())
+                    .is_some_and(|(b, f)| b.contains(f));
+                if !same {
+                    self.values[fi].clear();
+                    self.auto[fi] = false;
+                }
+            }
+            _ => {}
+        }
+    }
+
     /// Checks the focused field alone, for inline messages.
     fn check_field(&mut self, i: usize) {
         let v = self.values[i].trim();
@@ -565,6 +593,7 @@ impl AppState {
                     let mut fresh = Entry::default();
                     for f in keep {
                         fresh.values[Entry::idx(f)] = self.entry.get(f).to_string();
+                        fresh.auto[Entry::idx(f)] = true;
                     }
                     self.entry = fresh;
                 }
@@ -810,12 +839,17 @@ impl AppState {
                 } else {
                     c
                 };
+                // A value nearsky filled in is a suggestion: typing replaces it.
+                if self.entry.auto[i] {
+                    self.entry.values[i].clear();
+                }
                 self.entry.values[i].push(c);
                 self.entry.auto[i] = false;
                 self.entry.check_field(i);
                 if FIELDS[i].0 == Field::Call {
                     self.fill_from_call(now);
                 }
+                self.entry.follow_radio(FIELDS[i].0);
             }
             Key::Enter => {
                 if self.entry.get(Field::Call).trim().is_empty() {
