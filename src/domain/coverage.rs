@@ -638,8 +638,7 @@ impl CoverageBuilder {
             && !a.is_too_coarse_for_distance()
             && !b.is_too_coarse_for_distance()
         {
-            let p = self.paths.get(&a, &b);
-            let d = p.centre.distance_km;
+            let d = self.paths.centre(&a, &b).distance_km;
             if d >= GROUND_WAVE_KM {
                 let mid = super::geo::midpoint(a.centre(), b.centre());
                 let elev = sun::position(mid, o.start).elevation_deg;
@@ -671,8 +670,8 @@ impl CoverageBuilder {
                 let lb = lb.or(self.stations.locators[link.1 as usize]);
                 let (d, brg) = match (la, lb) {
                     (Some(a), Some(b)) => {
-                        let p = self.paths.get(&a, &b);
-                        (Some(p.centre.distance_km), p.centre.bearing_deg)
+                        let p = self.paths.centre(&a, &b);
+                        (Some(p.distance_km), p.bearing_deg)
                     }
                     _ => (None, None),
                 };

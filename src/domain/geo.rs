@@ -201,6 +201,7 @@ pub fn locator_path(a: &Locator, b: &Locator) -> LocatorPath {
 #[derive(Debug, Default)]
 pub struct PathCache {
     paths: HashMap<(Locator, Locator), LocatorPath>,
+    centres: HashMap<(Locator, Locator), Path>,
 }
 
 impl PathCache {
@@ -222,13 +223,33 @@ impl PathCache {
         if flipped { p.reversed() } else { p }
     }
 
+    /// The centre-to-centre geodesic only (no cell range): what coverage needs, at the cost of
+    /// one geodesic per pair.
+    pub fn centre(&mut self, a: &Locator, b: &Locator) -> Path {
+        let (key, flipped) = if a <= b { ((*a, *b), false) } else { ((*b, *a), true) };
+        let p = *self.centres.entry(key).or_insert_with(|| {
+            let mut p = path(key.0.centre(), key.1.centre());
+            if key.0.lies_in(&key.1) || key.1.lies_in(&key.0) {
+                p.direction = Direction::SameSpot;
+                p.bearing_deg = None;
+                p.reverse_bearing_deg = None;
+            }
+            p
+        });
+        if flipped {
+            Path { bearing_deg: p.reverse_bearing_deg, reverse_bearing_deg: p.bearing_deg, ..p }
+        } else {
+            p
+        }
+    }
+
     /// Number of distinct pairs computed so far.
     pub fn len(&self) -> usize {
-        self.paths.len()
+        self.paths.len().max(self.centres.len())
     }
 
     pub fn is_empty(&self) -> bool {
-        self.paths.is_empty()
+        self.paths.is_empty() && self.centres.is_empty()
     }
 }
 
