@@ -226,7 +226,11 @@ impl PathCache {
     /// The centre-to-centre geodesic only (no cell range): what coverage needs, at the cost of
     /// one geodesic per pair.
     pub fn centre(&mut self, a: &Locator, b: &Locator) -> Path {
-        let (key, flipped) = if a <= b { ((*a, *b), false) } else { ((*b, *a), true) };
+        let (key, flipped) = if a <= b {
+            ((*a, *b), false)
+        } else {
+            ((*b, *a), true)
+        };
         let p = *self.centres.entry(key).or_insert_with(|| {
             let mut p = path(key.0.centre(), key.1.centre());
             if key.0.lies_in(&key.1) || key.1.lies_in(&key.0) {
@@ -237,7 +241,11 @@ impl PathCache {
             p
         });
         if flipped {
-            Path { bearing_deg: p.reverse_bearing_deg, reverse_bearing_deg: p.bearing_deg, ..p }
+            Path {
+                bearing_deg: p.reverse_bearing_deg,
+                reverse_bearing_deg: p.bearing_deg,
+                ..p
+            }
         } else {
             p
         }

@@ -175,28 +175,50 @@ fn plan_for_bin(c: &Coverage, bin: usize, cfg: &PlanConfig) -> (PlanBin, Vec<Rel
     if let Some(band) = primary {
         let strengths = link_strengths(c, bin);
         // Who worked whom in this bin, and how strongly.
-        let mut neighbours: HashMap<&str, Vec<(&str, f64)>> = HashMap::new();
+        let mut neighbours: HashMap<&str, HashMap<&str, f64>> = HashMap::new();
         for ((x, y), st) in &strengths {
-            neighbours.entry(x.as_str()).or_default().push((y.as_str(), *st));
+            neighbours
+                .entry(x.as_str())
+                .or_default()
+                .insert(y.as_str(), *st);
         }
         for l in &c.links {
-            let Some(Some(cell)) = l.cells.get(&band).and_then(|row| row.get(bin)) else { continue };
+            let Some(Some(cell)) = l.cells.get(&band).and_then(|row| row.get(bin)) else {
+                continue;
+            };
             if cell.worked > 0 || cell.attempts == 0 {
                 continue;
             }
             let (na, nb) = (neighbours.get(l.a.as_str()), neighbours.get(l.b.as_str()));
             let mut candidates: Vec<RelayCandidate> = match (na, nb) {
                 (Some(na), Some(nb)) => {
-                    let nb: HashMap<&str, f64> = nb.iter().copied().collect();
-                    na.iter()
-                        .filter(|(s, _)| *s != l.b)
-                        .filter_map(|(s, x)| nb.get(s).map(|y| RelayCandidate { call: (*s).to_string(), strength: x.min(*y) }))
+                    // Walk the smaller neighbour list, look up in the other.
+                    let (small, large) = if na.len() <= nb.len() {
+                        (na, nb)
+                    } else {
+                        (nb, na)
+                    };
+                    small
+                        .iter()
+                        .filter(|(s, _)| **s != l.a && **s != l.b)
+                        .filter_map(|(s, x)| {
+                            large.get(s).map(|y| RelayCandidate {
+                                call: (*s).to_string(),
+                                strength: x.min(*y),
+                            })
+                        })
                         .collect()
                 }
                 _ => Vec::new(),
             };
             candidates.sort_by(|x, y| y.strength.total_cmp(&x.strength).then(x.call.cmp(&y.call)));
-            relays.push(RelayNeed { hour_start: hour_start.clone(), a: l.a.clone(), b: l.b.clone(), band, candidates });
+            relays.push(RelayNeed {
+                hour_start: hour_start.clone(),
+                a: l.a.clone(),
+                b: l.b.clone(),
+                band,
+                candidates,
+            });
         }
     }
     let minutes = c.config.bin_minutes;

@@ -1,0 +1,92 @@
+//! The terminal UI on a 1,000,000-contact logbook: first frame, key press to frame while
+//! typing, and switching to the coverage view; resident memory. Drawn on ratatui's TestBackend
+//! at 80×24 (the same drawing code as on a terminal, without the terminal's own output time).
+//!
+//! Run: `cargo bench --bench tui`. Targets: typing < 10 ms, coverage view < 200 ms, first
+//! frame < 150 ms, resident memory < 60 MB. The idle CPU is measured by scripts/idle-cpu.sh.
+
+#[path = "common/mod.rs"]
+mod common;
+
+use std::time::Instant;
+
+use chrono::Utc;
+use nearsky::app::ui::{AppState, Key};
+use nearsky::domain::ContactId;
+use nearsky::tui::{run_effect, snapshot, view};
+use ratatui::Terminal;
+use ratatui::backend::TestBackend;
+
+fn main() {
+    let dir = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("target/bench-tui");
+    let _ = std::fs::remove_dir_all(&dir);
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("million.db");
+    {
+        let mut book = common::build(&path, 1_000_000, 20);
+        let p = nearsky::store::StationProfile {
+            call: nearsky::domain::Callsign::parse("Q0AA").unwrap(),
+            operator: None,
+            usual_power: None,
+            antenna: None,
+            rig: None,
+        };
+        book.set_station(
+            &p,
+            nearsky::domain::Locator::parse("JN17ga")
+                .ok()
+                .map(|l| (l, Utc::now())),
+        )
+        .unwrap();
+    }
+    let rss_before = common::rss_mb();
+    let theme = view::Theme { color: true };
+    let t = Instant::now();
+    let mut book = nearsky::store::Logbook::open(&path).unwrap();
+    let mut state = AppState::new(snapshot(&book, Utc::now()).unwrap());
+    let mut term = Terminal::new(TestBackend::new(80, 24)).unwrap();
+    term.draw(|f| view::draw(f, &state, Utc::now(), theme))
+        .unwrap();
+    let first = t.elapsed();
+    let mut id = || ContactId(uuid::Uuid::new_v4());
+    let mut typing = Vec::new();
+    for c in "Q4SHL".chars() {
+        let t = Instant::now();
+        let u = state.key(Key::Char(c), Utc::now(), &mut id);
+        if u.redraw {
+            term.draw(|f| view::draw(f, &state, Utc::now(), theme))
+                .unwrap();
+        }
+        typing.push(t.elapsed());
+    }
+    typing.sort();
+    let t = Instant::now();
+    let u = state.key(Key::Ctrl('v'), Utc::now(), &mut id);
+    for e in u.effects {
+        let d = run_effect(&mut book, e, Utc::now());
+        state.done(d);
+    }
+    term.draw(|f| view::draw(f, &state, Utc::now(), theme))
+        .unwrap();
+    let review = t.elapsed();
+    println!("1,000,000-contact logbook, 80x24:");
+    println!(
+        "  first frame (open, load, draw):   {:8.1} ms  (target < 150 ms)",
+        first.as_secs_f64() * 1e3
+    );
+    println!(
+        "  key press to frame while typing:  {:8.3} ms median, {:.3} ms worst  (target < 10 ms)",
+        typing[typing.len() / 2].as_secs_f64() * 1e3,
+        typing[typing.len() - 1].as_secs_f64() * 1e3
+    );
+    println!(
+        "  switch to the coverage view:      {:8.1} ms  (target < 200 ms)",
+        review.as_secs_f64() * 1e3
+    );
+    println!(
+        "  resident memory: {:.0} MB after building the logbook, {:.0} MB with the UI state and coverage (target < 60 MB)",
+        rss_before,
+        common::rss_mb()
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}
