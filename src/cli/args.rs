@@ -98,6 +98,9 @@ pub enum Command {
     /// Where the stations' logs disagree (band, time, or outcome).
     #[command(after_help = "Example:\n  nearsky crosscheck --drill \"Autumn exercise\"")]
     Crosscheck(CrosscheckArgs),
+    /// Write the after-action report: one self-contained HTML page.
+    #[command(after_help = "Example:\n  nearsky report -o drill-report.html")]
+    Report(ReportArgs),
     /// Internal: adds contacts in a loop for the reliability tests.
     #[command(hide = true, name = "__writer")]
     Writer(WriterArgs),
@@ -421,6 +424,22 @@ pub struct CrosscheckArgs {
     pub tolerance: u16,
     #[arg(long, value_enum, default_value_t)]
     pub format: TextOrJson,
+}
+
+#[derive(Debug, Args)]
+pub struct ReportArgs {
+    /// Drill name (default: the drill in use; `all` for every drill).
+    #[arg(long)]
+    pub drill: Option<String>,
+    /// The HTML file to write.
+    #[arg(short = 'o', long = "output", value_name = "FILE.html")]
+    pub output: PathBuf,
+    /// Plan the next drill for this date (hours moved with the Sun).
+    #[arg(long = "for", value_name = "YYYY-MM-DD")]
+    pub for_date: Option<String>,
+    /// Overwrite an existing file.
+    #[arg(long)]
+    pub force: bool,
 }
 
 #[derive(Debug, Args)]

@@ -100,6 +100,7 @@ fn run(cli: Cli) -> Result<(), CliError> {
         Some(Command::Coverage(a)) => review::coverage(&mut out, db, &a),
         Some(Command::Plan(a)) => review::plan(&mut out, db, &a),
         Some(Command::Crosscheck(a)) => review::crosscheck(&mut out, db, &a),
+        Some(Command::Report(a)) => review::report(&mut out, db, &a, now),
         None => {
             let book = book::open(db)?;
             drop(out);

@@ -641,3 +641,68 @@ pub fn crosscheck(
     }
     Ok(())
 }
+
+pub fn report(
+    out: &mut impl Write,
+    db: Option<&Path>,
+    a: &super::args::ReportArgs,
+    now: chrono::DateTime<chrono::Utc>,
+) -> Result<(), CliError> {
+    let book = open(db)?;
+    let drill = drill_name(&book, a.drill.as_deref())?;
+    if a.output.exists() && !a.force {
+        return Err(usage(format!(
+            "{} exists; pass --force to overwrite it",
+            a.output.display()
+        )));
+    }
+    let for_date = a
+        .for_date
+        .as_deref()
+        .map(|d| {
+            NaiveDate::parse_from_str(d.trim(), "%Y-%m-%d")
+                .map_err(|_| usage(format!("--for: `{d}` is not a date (YYYY-MM-DD)")))
+        })
+        .transpose()?;
+    let c = load_coverage(&book, drill.as_deref(), CoverageConfig::default())?;
+    let p = make_plan(
+        &c,
+        &PlanConfig {
+            for_date,
+            ..PlanConfig::default()
+        },
+    );
+    let fail = |e: crate::store::StoreError| CliError::Failure(e.into());
+    let ncs = match &drill {
+        Some(d) => book
+            .drills()
+            .map_err(fail)?
+            .into_iter()
+            .find(|x| &x.name == d)
+            .and_then(|x| x.net_control)
+            .map(|c| c.to_string()),
+        None => None,
+    };
+    let home = match book.current_station().map_err(fail)? {
+        Some(s) => book.station_locator_at(&s.call, now).map_err(fail)?,
+        None => None,
+    };
+    let records = book
+        .count(&crate::store::ContactQuery {
+            drill: drill.clone(),
+            ..Default::default()
+        })
+        .map_err(fail)?;
+    let info = crate::formats::report::ReportInfo {
+        drill: drill.as_deref(),
+        net_control: ncs.as_deref(),
+        created: now,
+        records,
+        home,
+    };
+    let page = crate::formats::report::html(&c, &p, &info);
+    std::fs::write(&a.output, page)
+        .map_err(|e| CliError::Failure(anyhow::anyhow!("{}: {e}", a.output.display())))?;
+    writeln!(out, "wrote the report to {}", a.output.display()).map_err(io)?;
+    Ok(())
+}

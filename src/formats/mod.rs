@@ -2,3 +2,4 @@
 
 pub mod adif;
 pub mod csv;
+pub mod report;
