@@ -86,10 +86,10 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
         "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\"><title>{}</title><style>{CSS}</style></head><body>\n",
         esc(&title)
     );
-    let _ = write!(h, "<h1 id=\"title\">{}</h1>\n", esc(&title));
-    let _ = write!(
+    let _ = writeln!(h, "<h1 id=\"title\">{}</h1>", esc(&title));
+    let _ = writeln!(
         h,
-        "<p class=\"muted\">Made by nearsky {} on {} UTC{}. All times UTC.</p>\n",
+        "<p class=\"muted\">Made by nearsky {} on {} UTC{}. All times UTC.</p>",
         env!("CARGO_PKG_VERSION"),
         info.created.format("%Y-%m-%d %H:%M"),
         info.net_control
@@ -206,9 +206,9 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
     }
     h.push_str("</ul></section>\n");
     // Plan.
-    let _ = write!(
+    let _ = writeln!(
         h,
-        "<section id=\"plan\"><h2>Plan for the next drill</h2><p class=\"muted\">{}{}.</p><table><tr><th>UTC</th><th>primary</th><th>alternate</th><th>attempts</th><th class=\"l\">evidence</th></tr>\n",
+        "<section id=\"plan\"><h2>Plan for the next drill</h2><p class=\"muted\">{}{}.</p><table><tr><th>UTC</th><th>primary</th><th>alternate</th><th>attempts</th><th class=\"l\">evidence</th></tr>",
         esc(&plan.ranking),
         plan.for_date.map_or(String::new(), |d| format!(
             "; for {d}, hours moved with the Sun"
@@ -216,9 +216,9 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
     );
     let name = |b: Option<Band>| b.map_or("–".to_string(), |b| b.to_string());
     for b in &plan.bins {
-        let _ = write!(
+        let _ = writeln!(
             h,
-            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"l\">{}</td></tr>\n",
+            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td class=\"l\">{}</td></tr>",
             b.hour_start,
             name(b.primary),
             name(b.alternate),
@@ -236,9 +236,9 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
                 .take(4)
                 .map(|c| format!("{} ({:.2})", esc(&c.call), c.strength))
                 .collect();
-            let _ = write!(
+            let _ = writeln!(
                 h,
-                "<tr><td>{}</td><td>{}–{}</td><td>{}</td><td class=\"l\">{}</td></tr>\n",
+                "<tr><td>{}</td><td>{}–{}</td><td>{}</td><td class=\"l\">{}</td></tr>",
                 r.hour_start,
                 esc(&r.a),
                 esc(&r.b),
@@ -265,9 +265,9 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
                 ContradictionKind::Time => "time",
                 ContradictionKind::Outcome => "outcome",
             };
-            let _ = write!(
+            let _ = writeln!(
                 h,
-                "<tr><td>{kind}</td><td class=\"l\">{}</td><td>{} {}</td></tr>\n",
+                "<tr><td>{kind}</td><td class=\"l\">{}</td><td>{} {}</td></tr>",
                 esc(&x.message),
                 &x.ids[0].to_string()[..8],
                 &x.ids[1].to_string()[..8]
@@ -364,9 +364,9 @@ fn map_svg(c: &Coverage, band: Band, home: Option<Locator>) -> String {
             esc(call)
         );
     }
-    let _ = write!(
+    let _ = writeln!(
         s,
-        "<text x=\"6\" y=\"16\" font-size=\"13\" font-weight=\"bold\">{band}</text><text x=\"6\" y=\"{:.0}\" font-size=\"10\">rings every {ring:.0} km; north up</text></svg>\n",
+        "<text x=\"6\" y=\"16\" font-size=\"13\" font-weight=\"bold\">{band}</text><text x=\"6\" y=\"{:.0}\" font-size=\"10\">rings every {ring:.0} km; north up</text></svg>",
         size - 6.0
     );
     s
