@@ -7,7 +7,13 @@ use clap::{Args, Parser, Subcommand};
 /// nearsky: log every contact and failed attempt of an NVIS drill, and learn from them which
 /// band works at which hour.
 #[derive(Debug, Parser)]
-#[command(name = "nearsky", version, about, long_about = None)]
+#[command(
+    name = "nearsky",
+    version,
+    about,
+    long_about = None,
+    after_help = "Without a command, nearsky opens the terminal UI on the logbook.\n\nExamples:\n  nearsky demo\n  nearsky log Q4SHL --freq 7.1 --mode LSB --sent 59 --rcvd 57\n  nearsky coverage\n\nExit codes: 0 ok, 1 failure, 2 usage error, 3 import with rejected records."
+)]
 pub struct Cli {
     /// Logbook file (default: in the platform's data directory; also `NEARSKY_DB`).
     #[arg(long, global = true, env = "NEARSKY_DB", value_name = "PATH")]
@@ -101,6 +107,17 @@ pub enum Command {
     /// Write the after-action report: one self-contained HTML page.
     #[command(after_help = "Example:\n  nearsky report -o drill-report.html")]
     Report(ReportArgs),
+    /// Print shell completions (bash, zsh, fish, elvish, powershell).
+    #[command(
+        after_help = "Example:\n  nearsky completions bash > ~/.local/share/bash-completion/completions/nearsky"
+    )]
+    Completions {
+        #[arg(value_enum)]
+        shell: clap_complete::Shell,
+    },
+    /// Print the manual page (roff), made from the same definitions as --help.
+    #[command(after_help = "Example:\n  nearsky man > nearsky.1 && man ./nearsky.1")]
+    Man,
     /// Internal: adds contacts in a loop for the reliability tests.
     #[command(hide = true, name = "__writer")]
     Writer(WriterArgs),
@@ -122,7 +139,7 @@ pub struct LogArgs {
     /// Mode or submode (USB, LSB, CW, FT8, OLIVIA 8/250); default: the last one used.
     #[arg(long)]
     pub mode: Option<String>,
-    /// Own power in W (default: the station's usual power).
+    /// Own power in W (default: the config file's `power_w`, else the station's usual power).
     #[arg(long)]
     pub power: Option<String>,
     /// Report sent (59, 599, 5/9, -12).
@@ -145,9 +162,10 @@ pub struct LogArgs {
     pub via: Option<String>,
     #[arg(long)]
     pub note: Option<String>,
-    /// Minutes within which the same call, band and mode count as a possible duplicate.
-    #[arg(long, default_value_t = 10)]
-    pub dup_window: u32,
+    /// Minutes within which the same call, band and mode count as a possible duplicate
+    /// (default: the config file's `duplicate_window_minutes`, else 10).
+    #[arg(long)]
+    pub dup_window: Option<u32>,
     #[arg(long, value_enum, default_value_t)]
     pub format: TextOrJson,
 }
@@ -236,6 +254,9 @@ pub struct DeleteArgs {
 #[derive(Debug, Subcommand)]
 pub enum DrillCommand {
     /// Create a drill and use it.
+    #[command(
+        after_help = "Examples:\n  nearsky drill new \"Autumn exercise\" --ncs Q3NET\n  nearsky drill new \"Winter exercise\" --plan plan.json"
+    )]
     New {
         name: String,
         /// Net control station.
@@ -254,14 +275,19 @@ pub enum DrillCommand {
         plan: Option<PathBuf>,
     },
     /// List drills.
+    #[command(after_help = "Example:\n  nearsky drill list")]
     List,
     /// Choose the drill new contacts belong to.
+    #[command(after_help = "Example:\n  nearsky drill use \"Autumn exercise\"")]
     Use { name: String },
 }
 
 #[derive(Debug, Subcommand)]
 pub enum StationCommand {
     /// Create or update the own station and use it.
+    #[command(
+        after_help = "Example:\n  nearsky station set --call Q3NET --grid JN17ga --power 50 --antenna \"80/40 m link dipole\""
+    )]
     Set {
         #[arg(long)]
         call: String,
@@ -280,6 +306,7 @@ pub enum StationCommand {
         rig: Option<String>,
     },
     /// Record that the station moved (portable stations do, during a drill).
+    #[command(after_help = "Example:\n  nearsky station move --grid JN17gb --time 14:30")]
     Move {
         #[arg(long)]
         grid: String,
@@ -288,12 +315,16 @@ pub enum StationCommand {
         time: Option<String>,
     },
     /// Show the station in use and where it has been.
+    #[command(after_help = "Example:\n  nearsky station show")]
     Show,
 }
 
 #[derive(Debug, Subcommand)]
 pub enum RosterCommand {
     /// Add or update a station of the net.
+    #[command(
+        after_help = "Example:\n  nearsky roster add Q4SHL --name \"Shelter 1\" --grid JN17wm --role shelter"
+    )]
     Add {
         call: String,
         /// Tactical name, e.g. "Shelter 2".
@@ -305,6 +336,7 @@ pub enum RosterCommand {
         role: Option<String>,
     },
     /// List the roster with distance and bearing from the own station.
+    #[command(after_help = "Example:\n  nearsky roster list")]
     List,
 }
 

@@ -74,6 +74,35 @@ fn parse_time(
     }
 }
 
+/// A logbook without an own station takes it from the config file's call and locator.
+fn station_from_config(
+    book: &mut Logbook,
+    config: &crate::config::Config,
+    now: DateTime<Utc>,
+) -> Result<(), CliError> {
+    if book.current_station().map_err(st)?.is_some() {
+        return Ok(());
+    }
+    if let (Some(call), Some(locator)) = (&config.call, config.locator) {
+        let p = StationProfile {
+            call: call.clone(),
+            operator: None,
+            usual_power: config.power,
+            antenna: None,
+            rig: None,
+        };
+        book.set_station(&p, Some((locator, now))).map_err(st)?;
+        eprintln!(
+            "own station {call} at {locator}, from {}",
+            config
+                .source
+                .as_ref()
+                .map_or("the config file".to_string(), |p| p.display().to_string())
+        );
+    }
+    Ok(())
+}
+
 /// The own station as it is at `at`, for the snapshot every contact carries.
 fn own_snapshot(book: &Logbook, at: DateTime<Utc>) -> Result<StationSnapshot, CliError> {
     let Some(p) = book.current_station().map_err(st)? else {
@@ -197,8 +226,10 @@ pub fn log(
     db: Option<&Path>,
     a: &LogArgs,
     now: DateTime<Utc>,
+    config: &crate::config::Config,
 ) -> Result<(), CliError> {
     let mut book = open(db)?;
+    station_from_config(&mut book, config, now)?;
     let start = parse_time(a.time.as_deref(), now, "--time")?;
     let opt = |o: &Option<String>| o.clone().unwrap_or_default();
     let mut form = ContactForm {
@@ -210,7 +241,11 @@ pub fn log(
         mode: opt(&a.mode),
         sent: opt(&a.sent),
         rcvd: opt(&a.rcvd),
-        power: opt(&a.power),
+        power: a
+            .power
+            .clone()
+            .or_else(|| config.power.map(|p| p.watts().to_string()))
+            .unwrap_or_default(),
         other_power: opt(&a.their_power),
         outcome: a.outcome.clone(),
         via: opt(&a.via),
@@ -226,7 +261,11 @@ pub fn log(
         origin: Origin::LoggedHere,
     };
     let contact = form.validate(&ctx).map_err(usage)?;
-    let dups = book.add_contact(&contact, a.dup_window).map_err(st)?;
+    let window = a
+        .dup_window
+        .or(config.duplicate_window_minutes)
+        .unwrap_or(10);
+    let dups = book.add_contact(&contact, window).map_err(st)?;
     match a.format {
         TextOrJson::Json => {
             let mut v = contact_json(&contact, false, 1);

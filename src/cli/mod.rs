@@ -80,7 +80,11 @@ fn run(cli: Cli) -> Result<(), CliError> {
         Some(Command::Demo(a)) => demo::demo(&mut out, db, &a),
         Some(Command::Path(a)) => sky::path(&mut out, &a, now),
         Some(Command::Sun(a)) => sky::sun(&mut out, &a, now),
-        Some(Command::Log(a)) => book::log(&mut out, db, &a, now),
+        Some(Command::Log(a)) => {
+            let config =
+                crate::config::load(crate::config::default_path().as_deref()).map_err(usage)?;
+            book::log(&mut out, db, &a, now, &config)
+        }
         Some(Command::Note(a)) => book::note(&mut out, db, &a, now),
         Some(Command::List(a)) => book::list(&mut out, db, &a),
         Some(Command::Edit(a)) => book::edit(&mut out, db, &a, now),
@@ -101,6 +105,17 @@ fn run(cli: Cli) -> Result<(), CliError> {
         Some(Command::Plan(a)) => review::plan(&mut out, db, &a),
         Some(Command::Crosscheck(a)) => review::crosscheck(&mut out, db, &a),
         Some(Command::Report(a)) => review::report(&mut out, db, &a, now),
+        Some(Command::Completions { shell }) => {
+            let mut cmd = <Cli as clap::CommandFactory>::command();
+            clap_complete::generate(shell, &mut cmd, "nearsky", &mut out);
+            Ok(())
+        }
+        Some(Command::Man) => {
+            let cmd = <Cli as clap::CommandFactory>::command();
+            clap_mangen::Man::new(cmd)
+                .render(&mut out)
+                .map_err(|e| CliError::Failure(e.into()))
+        }
         None => {
             let book = book::open(db)?;
             drop(out);

@@ -1,0 +1,157 @@
+//! The command line as a whole: every command's --help with an example, completions and the
+//! man page, and the config file under command-line flags.
+
+use std::process::Command;
+
+use clap::CommandFactory;
+use nearsky::cli::Cli;
+
+fn run(args: &[&str], envs: &[(&str, &str)]) -> (i32, String, String) {
+    let mut c = Command::new(env!("CARGO_BIN_EXE_nearsky"));
+    c.args(args);
+    for (k, v) in envs {
+        c.env(k, v);
+    }
+    let out = c.output().unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+/// Every command path, e.g. ["drill", "new"], except the hidden test helper.
+fn paths(cmd: &clap::Command, prefix: Vec<String>, out: &mut Vec<Vec<String>>) {
+    for sub in cmd
+        .get_subcommands()
+        .filter(|s| !s.is_hide_set() && s.get_name() != "help")
+    {
+        let mut p = prefix.clone();
+        p.push(sub.get_name().to_string());
+        out.push(p.clone());
+        paths(sub, p, out);
+    }
+}
+
+#[test]
+fn every_command_has_help_with_an_example() {
+    let mut all = Vec::new();
+    paths(&Cli::command(), Vec::new(), &mut all);
+    assert!(all.len() >= 25, "{} commands", all.len());
+    for p in &all {
+        let mut args: Vec<&str> = p.iter().map(String::as_str).collect();
+        args.push("--help");
+        let (code, out, err) = run(&args, &[]);
+        assert_eq!(code, 0, "{p:?}: {err}");
+        let leaf = Cli::command()
+            .get_subcommands()
+            .find(|c| c.get_name() == p[0])
+            .map(|c| c.has_subcommands())
+            .unwrap_or(false)
+            && p.len() == 1;
+        if !leaf {
+            assert!(
+                out.contains("Example"),
+                "{p:?} --help has no example:\n{out}"
+            );
+        }
+    }
+    let (code, out, _) = run(&["--help"], &[]);
+    assert_eq!(code, 0);
+    assert!(out.contains("Exit codes"));
+}
+
+#[test]
+fn completions_and_the_man_page_are_generated() {
+    for shell in ["bash", "zsh", "fish"] {
+        let (code, out, _) = run(&["completions", shell], &[]);
+        assert_eq!(code, 0);
+        assert!(
+            out.contains("coverage") && out.contains("import"),
+            "{shell}"
+        );
+    }
+    let (code, out, _) = run(&["man"], &[]);
+    assert_eq!(code, 0);
+    assert!(
+        out.contains(".TH nearsky 1") && out.contains("coverage"),
+        "{out}"
+    );
+    let (code, _, err) = run(&["completions", "tcsh"], &[]);
+    assert_eq!(code, 2, "a usage error");
+    assert!(err.contains("tcsh"));
+}
+
+#[test]
+fn the_config_file_fills_in_and_flags_win() {
+    let dir = tempfile::tempdir().unwrap();
+    let cfg = dir.path().join("config.toml");
+    std::fs::write(
+        &cfg,
+        "call = \"Q3NET\"\nlocator = \"JN17ga\"\npower_w = 20\nduplicate_window_minutes = 2\n",
+    )
+    .unwrap();
+    let db = dir.path().join("log.db");
+    let d = db.to_str().unwrap();
+    let env = [("NEARSKY_CONFIG", cfg.to_str().unwrap())];
+    // No station in the logbook: the config's call and locator become it; its power is used.
+    let (code, out, err) = run(
+        &[
+            "--db", d, "log", "Q4SHL", "--time", "10:00", "--freq", "7.1", "--mode", "LSB",
+            "--format", "json",
+        ],
+        &env,
+    );
+    assert_eq!(code, 0, "{err}");
+    assert!(err.contains("own station Q3NET at JN17ga"), "{err}");
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(
+        (v["own_call"].as_str(), v["power_w"].as_f64()),
+        (Some("Q3NET"), Some(20.0))
+    );
+    // A flag wins over the config: power.
+    let (_, out, _) = run(
+        &[
+            "--db", d, "log", "Q5SHL", "--time", "10:01", "--freq", "7.1", "--mode", "LSB",
+            "--power", "5", "--format", "json",
+        ],
+        &env,
+    );
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["power_w"].as_f64(), Some(5.0));
+    // The config's 2-minute duplicate window: 4 minutes later is no duplicate...
+    let (_, out, _) = run(
+        &[
+            "--db", d, "log", "Q4SHL", "--time", "10:04", "--freq", "7.1", "--mode", "LSB",
+        ],
+        &env,
+    );
+    assert!(!out.contains("possible duplicate"), "{out}");
+    // ...unless the flag widens the window.
+    let (_, out, _) = run(
+        &[
+            "--db",
+            d,
+            "log",
+            "Q4SHL",
+            "--time",
+            "10:08",
+            "--freq",
+            "7.1",
+            "--mode",
+            "LSB",
+            "--dup-window",
+            "10",
+        ],
+        &env,
+    );
+    assert!(out.contains("possible duplicate"), "{out}");
+    // A bad config is a clear usage error naming file, field and value.
+    std::fs::write(&cfg, "power_w = -3\n").unwrap();
+    let (code, _, err) = run(
+        &["--db", d, "log", "Q4SHL", "--freq", "7.1", "--mode", "LSB"],
+        &env,
+    );
+    assert_eq!(code, 2);
+    assert!(err.contains("config.toml: power_w: power `-3 W`"), "{err}");
+}
