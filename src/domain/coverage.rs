@@ -5,7 +5,8 @@
 //! plain data. Memory grows with the number of links × bins and with the records of the last
 //! hour or so (kept to match both sides' logs), not with the length of the log.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::{BTreeMap, HashMap, VecDeque};
+use std::hash::{BuildHasherDefault, Hasher};
 
 use chrono::{DateTime, Duration, NaiveDate, Timelike, Utc};
 use serde::Serialize;
@@ -15,6 +16,42 @@ use super::skywave::{GROUND_WAVE_KM, Hop, chapman_foe_mhz, default_height_km};
 use super::stats::{Z95, weighted_median, wilson};
 use super::sun::{self, Daylight};
 use super::{Band, Contact, ContactId, LatLon, Locator, Outcome, Report};
+
+/// A fast hasher for the small integer keys of the cells (the multiply-rotate scheme of
+/// rustc's FxHash); keys here never come from outside, so flooding is no concern.
+#[derive(Default, Clone, Copy)]
+struct Fx(u64);
+
+impl Hasher for Fx {
+    fn write(&mut self, bytes: &[u8]) {
+        let mut chunks = bytes.chunks_exact(8);
+        for c in &mut chunks {
+            self.write_u64(u64::from_le_bytes([
+                c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7],
+            ]));
+        }
+        for b in chunks.remainder() {
+            self.write_u64(u64::from(*b));
+        }
+    }
+    fn write_u8(&mut self, v: u8) {
+        self.write_u64(u64::from(v));
+    }
+    fn write_u32(&mut self, v: u32) {
+        self.write_u64(u64::from(v));
+    }
+    fn write_usize(&mut self, v: usize) {
+        self.write_u64(v as u64);
+    }
+    fn write_u64(&mut self, v: u64) {
+        self.0 = (self.0.rotate_left(5) ^ v).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type FxMap<K, V> = HashMap<K, V, BuildHasherDefault<Fx>>;
 
 /// How coverage is counted.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -152,6 +189,11 @@ impl Cell {
 pub struct LinkRow {
     pub a: String,
     pub b: String,
+    /// Indices of `a` and `b` in [`Coverage::stations`].
+    #[serde(skip)]
+    pub ia: u32,
+    #[serde(skip)]
+    pub ib: u32,
     pub distance_km: Option<f64>,
     /// Bearing from `a` to `b`.
     pub bearing_deg: Option<f64>,
@@ -298,7 +340,7 @@ struct Pending {
 
 #[derive(Default)]
 struct Stations {
-    index: HashMap<String, u32>,
+    index: FxMap<String, u32>,
     calls: Vec<String>,
     locators: Vec<Option<Locator>>,
 }
@@ -363,9 +405,13 @@ pub struct CoverageBuilder {
     config: CoverageConfig,
     stations: Stations,
     paths: PathCache,
-    pending: HashMap<(u32, u32), Vec<Pending>>,
-    cells: HashMap<((u32, u32), Band, usize), Cell>,
-    link_geo: HashMap<(u32, u32), (Option<Locator>, Option<Locator>)>,
+    pending: FxMap<(u32, u32), Vec<Pending>>,
+    /// Pending records in arrival order, so expiry visits only what expires.
+    queue: VecDeque<(DateTime<Utc>, (u32, u32), ContactId)>,
+    cells: FxMap<((u32, u32), Band, usize), Cell>,
+    midpoints: FxMap<(Locator, Locator), LatLon>,
+    sun_grid: FxMap<(i32, i32, i64), f64>,
+    link_geo: FxMap<(u32, u32), (Option<Locator>, Option<Locator>)>,
     fc: Vec<FcTop>,
     bin_date: Vec<Option<DateTime<Utc>>>,
     contradictions: Vec<Contradiction>,
@@ -389,9 +435,12 @@ impl CoverageBuilder {
             config,
             stations: Stations::default(),
             paths: PathCache::new(),
-            pending: HashMap::new(),
-            cells: HashMap::new(),
-            link_geo: HashMap::new(),
+            pending: FxMap::default(),
+            queue: VecDeque::new(),
+            cells: FxMap::default(),
+            midpoints: FxMap::default(),
+            sun_grid: FxMap::default(),
+            link_geo: FxMap::default(),
             fc: vec![FcTop::default(); bins],
             bin_date: vec![None; bins],
             contradictions: Vec::new(),
@@ -478,9 +527,11 @@ impl CoverageBuilder {
             });
             let mut rec = rec;
             rec.flagged = true;
+            self.queue.push_back((rec.start, link, rec.id));
             list.push(rec);
             return;
         }
+        self.queue.push_back((rec.start, link, rec.id));
         list.push(rec);
     }
 
@@ -488,33 +539,41 @@ impl CoverageBuilder {
     fn expire(&mut self, before: DateTime<Utc>) {
         let tol = Duration::minutes(i64::from(self.config.tolerance_minutes));
         let mut done = Vec::new();
-        for (link, list) in self.pending.iter_mut() {
-            let mut i = 0;
-            while i < list.len() {
-                if list[i].start < before {
-                    let p = list.remove(i);
-                    // A made contact that the other side logged too, but too far apart in time.
-                    if p.outcome.made_contact()
-                        && !p.flagged
-                        && let Some(q) = list.iter_mut().find(|q| {
-                            q.from != p.from
-                                && q.band == p.band
-                                && q.outcome.made_contact()
-                                && !q.flagged
-                                && (q.start - p.start).abs() > tol
-                        })
-                    {
-                        q.flagged = true;
-                        done.push((*link, p, Some((q.id, q.start, q.from))));
-                    } else {
-                        done.push((*link, p, None));
-                    }
-                } else {
-                    i += 1;
-                }
+        while let Some(&(t, link, id)) = self.queue.front() {
+            if t >= before {
+                break;
             }
+            self.queue.pop_front();
+            let Some(list) = self.pending.get_mut(&link) else {
+                continue;
+            };
+            // Already matched with the other side's record: nothing left to do.
+            let Some(i) = list.iter().position(|p| p.id == id) else {
+                continue;
+            };
+            let p = list.remove(i);
+            // A made contact that the other side logged too, but too far apart in time.
+            let other = if p.outcome.made_contact() && !p.flagged {
+                list.iter_mut()
+                    .find(|q| {
+                        q.from != p.from
+                            && q.band == p.band
+                            && q.outcome.made_contact()
+                            && !q.flagged
+                            && (q.start - p.start).abs() > tol
+                    })
+                    .map(|q| {
+                        q.flagged = true;
+                        (q.id, q.start, q.from)
+                    })
+            } else {
+                None
+            };
+            if list.is_empty() {
+                self.pending.remove(&link);
+            }
+            done.push((link, p, other));
         }
-        self.pending.retain(|_, l| !l.is_empty());
         done.sort_by_key(|d| d.1.start);
         for (link, p, other) in done {
             if let Some((qid, qt, qfrom)) = other {
@@ -640,8 +699,25 @@ impl CoverageBuilder {
         {
             let d = self.paths.centre(&a, &b).distance_km;
             if d >= GROUND_WAVE_KM {
-                let mid = super::geo::midpoint(a.centre(), b.centre());
-                let elev = sun::position(mid, o.start).elevation_deg;
+                let mid = *self
+                    .midpoints
+                    .entry(if a <= b { (a, b) } else { (b, a) })
+                    .or_insert_with(|| super::geo::midpoint(a.centre(), b.centre()));
+                // The Sun at the midpoint, on a grid of 0.5° and 10 minutes: plenty for the
+                // reflection height, and computed once per grid cell.
+                let key = (
+                    (mid.lat * 2.0).round() as i32,
+                    (mid.lon * 2.0).round() as i32,
+                    o.start.timestamp().div_euclid(600),
+                );
+                let elev = *self.sun_grid.entry(key).or_insert_with(|| {
+                    let at = LatLon {
+                        lat: f64::from(key.0) / 2.0,
+                        lon: f64::from(key.1) / 2.0,
+                    };
+                    let t = DateTime::from_timestamp(key.2 * 600 + 300, 0).unwrap_or(o.start);
+                    sun::position(at, t).elevation_deg
+                });
                 let h = default_height_km(elev);
                 let floor = Hop::new(d, h).critical_frequency_floor_mhz(f);
                 self.fc[bin].add(floor, o.confirmed, h);
@@ -678,6 +754,8 @@ impl CoverageBuilder {
                 links.push(LinkRow {
                     a: self.stations.calls[link.0 as usize].clone(),
                     b: self.stations.calls[link.1 as usize].clone(),
+                    ia: link.0,
+                    ib: link.1,
                     distance_km: d,
                     bearing_deg: brg,
                     cells: BTreeMap::new(),

@@ -11,7 +11,7 @@
 //! fraction of the day (sunrise to sunset) or of the night (sunset to sunrise) at the net's
 //! centre, and placed at the same fraction on the new date.
 
-use std::collections::{BTreeMap, HashMap};
+use std::collections::BTreeMap;
 
 use chrono::NaiveDate;
 use serde::{Deserialize, Serialize};
@@ -83,6 +83,9 @@ pub struct Plan {
     pub ranking: String,
 }
 
+/// Relay candidates kept per failing link (the strongest).
+pub const MAX_RELAY_CANDIDATES: usize = 5;
+
 /// The ranking rule, as stated in the plan.
 pub const RANKING: &str = "bands ranked by the lower limit of the 95% Wilson interval of the worked proportion; ties: higher worked proportion, then more attempts, then the lower frequency";
 
@@ -117,25 +120,30 @@ fn rank_bands(c: &Coverage, bin: usize, min_attempts: u32) -> Vec<Ranked> {
     r
 }
 
-/// Strength of each link in a bin: its best band's lower Wilson limit (worked links only).
-fn link_strengths(c: &Coverage, bin: usize) -> HashMap<(String, String), f64> {
-    let mut out = HashMap::new();
+/// Strength of each link in a bin as a dense matrix over the stations: its best band's lower
+/// Wilson limit, for links that worked; negative where there is none.
+fn link_strengths(c: &Coverage, bin: usize) -> Vec<f64> {
+    let n = c.stations.len();
+    let mut m = vec![-1.0; n * n];
     for l in &c.links {
         let best = l
             .cells
             .values()
-            .filter_map(|row| row.get(bin).cloned().flatten())
+            .filter_map(|row| row.get(bin).and_then(Option::as_ref))
             .filter(|cell| cell.worked > 0)
             .filter_map(|cell| {
                 wilson(u64::from(cell.worked), u64::from(cell.attempts), Z95).map(|w| w.0)
             })
             .reduce(f64::max);
         if let Some(s) = best {
-            out.insert((l.a.clone(), l.b.clone()), s);
-            out.insert((l.b.clone(), l.a.clone()), s);
+            let (a, b) = (l.ia as usize, l.ib as usize);
+            if a < n && b < n {
+                m[a * n + b] = s;
+                m[b * n + a] = s;
+            }
         }
     }
-    out
+    m
 }
 
 fn plan_for_bin(c: &Coverage, bin: usize, cfg: &PlanConfig) -> (PlanBin, Vec<RelayNeed>) {
@@ -173,15 +181,8 @@ fn plan_for_bin(c: &Coverage, bin: usize, cfg: &PlanConfig) -> (PlanBin, Vec<Rel
     let alternate = ranked.get(1).map(|r| r.band);
     let mut relays = Vec::new();
     if let Some(band) = primary {
-        let strengths = link_strengths(c, bin);
-        // Who worked whom in this bin, and how strongly.
-        let mut neighbours: HashMap<&str, HashMap<&str, f64>> = HashMap::new();
-        for ((x, y), st) in &strengths {
-            neighbours
-                .entry(x.as_str())
-                .or_default()
-                .insert(y.as_str(), *st);
-        }
+        let n = c.stations.len();
+        let strength = link_strengths(c, bin);
         for l in &c.links {
             let Some(Some(cell)) = l.cells.get(&band).and_then(|row| row.get(bin)) else {
                 continue;
@@ -189,29 +190,26 @@ fn plan_for_bin(c: &Coverage, bin: usize, cfg: &PlanConfig) -> (PlanBin, Vec<Rel
             if cell.worked > 0 || cell.attempts == 0 {
                 continue;
             }
-            let (na, nb) = (neighbours.get(l.a.as_str()), neighbours.get(l.b.as_str()));
-            let mut candidates: Vec<RelayCandidate> = match (na, nb) {
-                (Some(na), Some(nb)) => {
-                    // Walk the smaller neighbour list, look up in the other.
-                    let (small, large) = if na.len() <= nb.len() {
-                        (na, nb)
-                    } else {
-                        (nb, na)
-                    };
-                    small
-                        .iter()
-                        .filter(|(s, _)| **s != l.a && **s != l.b)
-                        .filter_map(|(s, x)| {
-                            large.get(s).map(|y| RelayCandidate {
-                                call: (*s).to_string(),
-                                strength: x.min(*y),
-                            })
-                        })
-                        .collect()
-                }
-                _ => Vec::new(),
-            };
-            candidates.sort_by(|x, y| y.strength.total_cmp(&x.strength).then(x.call.cmp(&y.call)));
+            let (a, b) = (l.ia as usize, l.ib as usize);
+            let mut found: Vec<(usize, f64)> = (0..n)
+                .filter(|k| *k != a && *k != b)
+                .filter_map(|k| {
+                    let (x, y) = (strength[a * n + k], strength[b * n + k]);
+                    (x >= 0.0 && y >= 0.0).then_some((k, x.min(y)))
+                })
+                .collect();
+            found.sort_by(|x, y| {
+                y.1.total_cmp(&x.1)
+                    .then_with(|| c.stations[x.0].0.cmp(&c.stations[y.0].0))
+            });
+            found.truncate(MAX_RELAY_CANDIDATES);
+            let candidates = found
+                .into_iter()
+                .map(|(k, st)| RelayCandidate {
+                    call: c.stations[k].0.clone(),
+                    strength: st,
+                })
+                .collect();
             relays.push(RelayNeed {
                 hour_start: hour_start.clone(),
                 a: l.a.clone(),
