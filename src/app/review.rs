@@ -24,10 +24,7 @@ pub fn load_coverage(
         drill: drill.map(str::to_string),
         ..ContactQuery::default()
     };
-    book.for_each_contact(&q, |s| {
-        b.add(&s.contact);
-        Ok(())
-    })?;
+    book.for_each_sighting(&q, |s| b.add_sighting(s))?;
     let notes: Vec<OperatorNote> = book
         .notes(drill)?
         .into_iter()

@@ -153,6 +153,19 @@ impl Callsign {
     }
 }
 
+/// The base call of a call sign that was already checked (as stored): `EA8/Q3NET/P` →
+/// `Q3NET`, without allocating. Follows the same rules as [`Callsign::parse`].
+pub fn base_of(checked: &str) -> &str {
+    let mut parts = checked.split('/');
+    let first = parts.next().unwrap_or(checked);
+    match (parts.next(), parts.next()) {
+        (None, _) => first,
+        (Some(second), None) if is_suffix(second) => first,
+        (Some(second), None) => second,
+        (Some(middle), Some(_)) => middle,
+    }
+}
+
 fn is_suffix(part: &str) -> bool {
     SUFFIXES.contains(&part) || (part.len() == 1 && part.as_bytes()[0].is_ascii_digit())
 }
@@ -247,6 +260,20 @@ mod tests {
         );
         for s in ["Q3NET/M", "Q3NET/AM", "Q3NET/A"] {
             assert!(Callsign::parse(s).is_ok(), "{s}");
+        }
+    }
+
+    #[test]
+    fn base_of_agrees_with_parse() {
+        for s in [
+            "Q3NET",
+            "Q3NET/P",
+            "EA8/Q3NET",
+            "EA8/Q3NET/MM",
+            "Q7AB/3",
+            "Q1/Q3NET",
+        ] {
+            assert_eq!(base_of(s), Callsign::parse(s).unwrap().base(), "{s}");
         }
     }
 

@@ -272,6 +272,23 @@ pub enum ContradictionKind {
     Outcome,
 }
 
+/// What coverage reads of one record: both ends (base calls and locators), time, band,
+/// frequency, outcome and the report received.
+#[derive(Debug, Clone, Copy)]
+pub struct Sighting<'a> {
+    pub id: ContactId,
+    /// Base call of the logging station.
+    pub from: &'a str,
+    pub from_locator: Option<Locator>,
+    pub to: &'a str,
+    pub to_locator: Option<Locator>,
+    pub start: DateTime<Utc>,
+    pub band: Band,
+    pub freq_hz: Option<u64>,
+    pub outcome: Outcome,
+    pub rcvd: Option<Report>,
+}
+
 /// A contact an operator's note is attached to.
 #[derive(Debug, Clone)]
 pub struct OperatorNote {
@@ -456,8 +473,24 @@ impl CoverageBuilder {
     /// Adds one contact. Contacts must come in start-time order; one out of order is still
     /// counted, only its matching with the other side's record may be missed.
     pub fn add(&mut self, c: &Contact) {
-        let from = self.stations.id(c.own.call.base(), c.own.locator);
-        let to = self.stations.id(c.call.base(), c.locator);
+        self.add_sighting(&Sighting {
+            id: c.id,
+            from: c.own.call.base(),
+            from_locator: c.own.locator,
+            to: c.call.base(),
+            to_locator: c.locator,
+            start: c.start,
+            band: c.band,
+            freq_hz: c.frequency.map(|f| f.hz()),
+            outcome: c.outcome,
+            rcvd: c.rcvd,
+        });
+    }
+
+    /// Adds one record given as just what coverage needs (a reader that skips the rest).
+    pub fn add_sighting(&mut self, c: &Sighting<'_>) {
+        let from = self.stations.id(c.from, c.from_locator);
+        let to = self.stations.id(c.to, c.to_locator);
         if from == to {
             return;
         }
@@ -476,11 +509,11 @@ impl CoverageBuilder {
             band: c.band,
             outcome: c.outcome,
             rcvd: c.rcvd,
-            freq_mhz: c.frequency.map(|f| f.mhz()),
+            freq_mhz: c.freq_hz.map(|f| f as f64 / 1e6),
             ends: if from < to {
-                (c.own.locator, c.locator)
+                (c.from_locator, c.to_locator)
             } else {
-                (c.locator, c.own.locator)
+                (c.to_locator, c.from_locator)
             },
             flagged: false,
         };

@@ -432,6 +432,79 @@ impl Logbook {
         Ok(())
     }
 
+    /// Calls `f` for every contact that matches, oldest first, with only what coverage needs:
+    /// a lean reader that skips the columns and checks coverage does not use. A row whose
+    /// stored values cannot be read is reported like [`Logbook::contact`] would.
+    pub fn for_each_sighting(
+        &self,
+        q: &ContactQuery,
+        mut f: impl FnMut(&crate::domain::coverage::Sighting<'_>),
+    ) -> Result<()> {
+        use crate::domain::callsign::base_of;
+        let mut stmt = self.conn.prepare(
+            "SELECT c.uuid, c.own_call, c.own_locator, c.call, c.locator, c.start_utc, c.band, c.freq_hz,
+                    c.outcome, c.rst_rcvd
+             FROM contact c LEFT JOIN drill d ON d.id = c.drill_id
+             WHERE (?1 IS NULL OR d.name = ?1) AND (?2 IS NULL OR c.band = ?2)
+               AND (?3 IS NULL OR c.start_utc >= ?3) AND (?4 IS NULL OR c.start_utc < ?4)
+               AND (?5 OR c.deleted = 0)
+             ORDER BY c.start_utc, c.id",
+        )?;
+        let mut rows = stmt.query(params![
+            q.drill,
+            q.band.map(Band::name),
+            q.from.map(ts),
+            q.until.map(ts),
+            q.include_deleted
+        ])?;
+        let text = |r: &Row<'_>, i: usize| -> rusqlite::Result<Option<String>> { r.get(i) };
+        while let Some(r) = rows.next()? {
+            let uuid = r.get_ref(0)?.as_str().unwrap_or("");
+            let bad = |why: &str| StoreError::BadRow {
+                uuid: uuid.to_string(),
+                why: why.to_string(),
+            };
+            let id = Uuid::parse_str(uuid).map_err(|e| bad(&format!("uuid: {e}")))?;
+            let own = r.get_ref(1)?.as_str().map_err(|_| bad("own call"))?;
+            let call = r.get_ref(3)?.as_str().map_err(|_| bad("call"))?;
+            let loc = |i: usize| -> Result<Option<Locator>> {
+                match r.get_ref(i)?.as_str_or_null().map_err(|_| bad("locator"))? {
+                    None => Ok(None),
+                    Some(t) => Locator::parse(t)
+                        .map(Some)
+                        .map_err(|e| bad(&format!("locator: {e}"))),
+                }
+            };
+            let band = Band::parse(r.get_ref(6)?.as_str().map_err(|_| bad("band"))?)
+                .map_err(|e| bad(&format!("band: {e}")))?;
+            let freq: Option<i64> = r.get(7)?;
+            let outcome = match r.get_ref(8)?.as_str().map_err(|_| bad("outcome"))? {
+                "worked" => Outcome::Worked,
+                "partial" => Outcome::Partial,
+                "none" => Outcome::NoContact,
+                o => return Err(bad(&format!("outcome `{o}`"))),
+            };
+            let rcvd = text(r, 9)?
+                .map(|t| Report::parse(&t))
+                .transpose()
+                .map_err(|e| bad(&format!("report received: {e}")))?;
+            let s = crate::domain::coverage::Sighting {
+                id: ContactId(id),
+                from: base_of(own),
+                from_locator: loc(2)?,
+                to: base_of(call),
+                to_locator: loc(4)?,
+                start: from_ts(r.get(5)?),
+                band,
+                freq_hz: freq.map(|f| f.max(0) as u64),
+                outcome,
+                rcvd,
+            };
+            f(&s);
+        }
+        Ok(())
+    }
+
     /// Starts an import: one transaction for a whole file. Nothing is stored unless
     /// [`Import::commit`] is called.
     pub fn begin_import(&mut self) -> Result<Import<'_>> {
