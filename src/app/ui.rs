@@ -639,7 +639,6 @@ impl AppState {
             }
             Done::Loaded(s) => {
                 self.load(*s);
-                self.review = None;
                 Update::redraw()
             }
             Done::Review(r) => {

@@ -160,6 +160,43 @@ pub fn theme() -> view::Theme {
     }
 }
 
+/// What wakes the loop.
+enum Msg {
+    Input(Event),
+    /// Coverage and plan, computed in the background.
+    Review(Done),
+}
+
+/// Computes coverage in a thread with its own connection, so the review is ready before it is
+/// asked for and a large logbook never blocks typing. Requests that pile up are merged.
+fn review_worker(path: std::path::PathBuf, tx: mpsc::Sender<Msg>) -> mpsc::Sender<()> {
+    let (req_tx, req_rx) = mpsc::channel::<()>();
+    std::thread::spawn(move || {
+        let Ok(book) = Logbook::open(&path) else {
+            return;
+        };
+        while req_rx.recv().is_ok() {
+            while req_rx.try_recv().is_ok() {}
+            let d = run_effect_review(&book);
+            if tx.send(Msg::Review(d)).is_err() {
+                break;
+            }
+        }
+    });
+    req_tx
+}
+
+fn run_effect_review(book: &Logbook) -> Done {
+    let drill = book.current_drill().ok().flatten();
+    match load_coverage(book, drill.as_deref(), CoverageConfig::default()) {
+        Ok(c) => {
+            let p = make_plan(&c, &PlanConfig::default());
+            Done::Review(Box::new((c, p)))
+        }
+        Err(e) => Done::Failed(e.to_string()),
+    }
+}
+
 /// Runs the UI on a logbook until the operator quits.
 pub fn run(mut book: Logbook, start_screen: Option<crate::app::ui::Screen>) -> anyhow::Result<()> {
     let data = snapshot(&book, Utc::now())?;
@@ -169,29 +206,56 @@ pub fn run(mut book: Logbook, start_screen: Option<crate::app::ui::Screen>) -> a
     let _restore = Restore;
     // Keys come from a thread that blocks in `event::read`.
     let (tx, rx) = mpsc::channel();
+    let keys = tx.clone();
     std::thread::spawn(move || {
         while let Ok(ev) = event::read() {
-            if tx.send(ev).is_err() {
+            if keys.send(Msg::Input(ev)).is_err() {
                 break;
             }
         }
     });
+    let worker = book
+        .path()
+        .map(|p| review_worker(p.to_path_buf(), tx.clone()));
+    if let Some(w) = &worker {
+        let _ = w.send(());
+    }
     let mut new_id = || ContactId(Uuid::new_v4());
-    if let Some(s) = start_screen {
-        let u = state.key(
-            match s {
-                crate::app::ui::Screen::Review => Key::Ctrl('v'),
-                crate::app::ui::Screen::Map => Key::Ctrl('g'),
-                crate::app::ui::Screen::RollCall => Key::Ctrl('r'),
-                crate::app::ui::Screen::Log => Key::Ctrl('l'),
-            },
-            Utc::now(),
-            &mut new_id,
-        );
-        for e in u.effects {
-            let d = run_effect(&mut book, e, Utc::now());
-            state.done(d);
+    // Runs effects; a review request goes to the worker when there is one.
+    let run_all = |state: &mut AppState, book: &mut Logbook, mut effects: Vec<Effect>| -> bool {
+        let mut redraw = false;
+        while !effects.is_empty() {
+            let e = effects.remove(0);
+            let changes = matches!(
+                e,
+                Effect::Add { .. } | Effect::Edit { .. } | Effect::Delete { .. }
+            );
+            if let (Effect::LoadReview, Some(w)) = (&e, &worker) {
+                let _ = w.send(());
+                continue;
+            }
+            let d = run_effect(book, e, Utc::now());
+            if changes
+                && !matches!(d, Done::Failed(_))
+                && let Some(w) = &worker
+            {
+                let _ = w.send(());
+            }
+            let more = state.done(d);
+            redraw |= more.redraw;
+            effects.extend(more.effects);
         }
+        redraw
+    };
+    if let Some(s) = start_screen {
+        let key = match s {
+            crate::app::ui::Screen::Review => Key::Ctrl('v'),
+            crate::app::ui::Screen::Map => Key::Ctrl('g'),
+            crate::app::ui::Screen::RollCall => Key::Ctrl('r'),
+            crate::app::ui::Screen::Log => Key::Ctrl('l'),
+        };
+        let u = state.key(key, Utc::now(), &mut new_id);
+        run_all(&mut state, &mut book, u.effects);
     }
     let mut dirty = true;
     let mut last_second = Utc::now().timestamp();
@@ -202,25 +266,22 @@ pub fn run(mut book: Logbook, start_screen: Option<crate::app::ui::Screen>) -> a
             last_second = now.timestamp();
             dirty = false;
         }
-        // Sleep until the next clock second, unless a key comes first.
+        // Sleep until the next clock second, unless a key (or a result) comes first.
         let now = Utc::now();
         let to_next = 1000 - u64::from(now.timestamp_subsec_millis()).min(999);
         match rx.recv_timeout(Duration::from_millis(to_next)) {
-            Ok(Event::Key(k)) if k.kind != KeyEventKind::Release => {
+            Ok(Msg::Input(Event::Key(k))) if k.kind != KeyEventKind::Release => {
                 let Some(key) = key_of(k) else { continue };
-                let now = Utc::now();
-                let mut u = state.key(key, now, &mut new_id);
+                let u = state.key(key, Utc::now(), &mut new_id);
                 dirty |= u.redraw;
-                // Effects may lead to more effects (a save reloads the list).
-                while let Some(e) = (!u.effects.is_empty()).then(|| u.effects.remove(0)) {
-                    let d = run_effect(&mut book, e, now);
-                    let more = state.done(d);
-                    dirty |= more.redraw;
-                    u.effects.extend(more.effects);
-                }
+                dirty |= run_all(&mut state, &mut book, u.effects);
             }
-            Ok(Event::Resize(..)) => dirty = true,
-            Ok(_) => {}
+            Ok(Msg::Input(Event::Resize(..))) => dirty = true,
+            Ok(Msg::Input(_)) => {}
+            Ok(Msg::Review(d)) => {
+                let u = state.done(d);
+                dirty |= u.redraw;
+            }
             Err(RecvTimeoutError::Timeout) => dirty |= Utc::now().timestamp() != last_second,
             Err(RecvTimeoutError::Disconnected) => break,
         }
