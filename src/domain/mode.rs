@@ -90,6 +90,33 @@ pub struct Mode {
 impl Mode {
     /// Checks a mode and optional submode against the ADIF tables (case-insensitive).
     pub fn new(mode: &str, submode: Option<&str>) -> Result<Self, ModeError> {
+        // The same few modes come back for every record of a log: remember the answers.
+        thread_local! {
+            static SEEN: std::cell::RefCell<HashMap<(String, Option<String>), Mode>> = std::cell::RefCell::new(HashMap::new());
+        }
+        let hit = SEEN.with(|m| {
+            m.borrow()
+                .iter()
+                .find(|((a, b), _)| a == mode && b.as_deref() == submode)
+                .map(|(_, v)| v.clone())
+        });
+        if let Some(m) = hit {
+            return Ok(m);
+        }
+        let checked = Self::check(mode, submode)?;
+        SEEN.with(|m| {
+            let mut m = m.borrow_mut();
+            if m.len() < 64 {
+                m.insert(
+                    (mode.to_string(), submode.map(str::to_string)),
+                    checked.clone(),
+                );
+            }
+        });
+        Ok(checked)
+    }
+
+    fn check(mode: &str, submode: Option<&str>) -> Result<Self, ModeError> {
         let given = mode.trim().to_ascii_uppercase();
         let submode = submode.map(str::trim).filter(|s| !s.is_empty());
         if given.is_empty() {

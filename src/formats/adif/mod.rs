@@ -123,6 +123,27 @@ fn watts(p: Power) -> String {
     }
 }
 
+/// `YYYYMMDD` and `HHMMSS` of a UTC time (digits written directly: this runs for every record
+/// of an export).
+fn adif_date_time(t: DateTime<Utc>) -> (String, String) {
+    use chrono::{Datelike, Timelike};
+    let mut d = String::with_capacity(8);
+    let mut h = String::with_capacity(6);
+    let push2 = |s: &mut String, v: u32| {
+        s.push(char::from(b'0' + (v / 10 % 10) as u8));
+        s.push(char::from(b'0' + (v % 10) as u8));
+    };
+    let y = t.year().max(0) as u32;
+    push2(&mut d, y / 100);
+    push2(&mut d, y % 100);
+    push2(&mut d, t.month());
+    push2(&mut d, t.day());
+    push2(&mut h, t.hour());
+    push2(&mut h, t.minute());
+    push2(&mut h, t.second());
+    (d, h)
+}
+
 /// Calls `f(name, value)` for every ADIF field of a contact, in a fixed order. `ascii` folds
 /// text for ADI; ADX keeps it whole. `paths` caches distances per locator pair.
 pub fn for_each_field(
@@ -139,11 +160,13 @@ pub fn for_each_field(
         }
     };
     f("CALL", c.call.as_str())?;
-    f("QSO_DATE", &c.start.format("%Y%m%d").to_string())?;
-    f("TIME_ON", &c.start.format("%H%M%S").to_string())?;
+    let (date, time) = adif_date_time(c.start);
+    f("QSO_DATE", &date)?;
+    f("TIME_ON", &time)?;
     if let Some(end) = c.end {
-        f("QSO_DATE_OFF", &end.format("%Y%m%d").to_string())?;
-        f("TIME_OFF", &end.format("%H%M%S").to_string())?;
+        let (date, time) = adif_date_time(end);
+        f("QSO_DATE_OFF", &date)?;
+        f("TIME_OFF", &time)?;
     }
     f("BAND", c.band.name())?;
     if let Some(q) = c.frequency {
