@@ -48,6 +48,21 @@ pub fn load_coverage(
     })
 }
 
+/// The `--for` date of a plan.
+fn plan_date(text: Option<&str>) -> Result<Option<NaiveDate>, CliError> {
+    text.map(|d| {
+        NaiveDate::parse_from_str(d.trim(), "%Y-%m-%d")
+            .map_err(|_| usage(format!("--for: `{d}` is not a date (YYYY-MM-DD)")))
+    })
+    .transpose()
+}
+
+/// Pretty JSON on its own line.
+fn print_json(out: &mut impl Write, v: &impl serde::Serialize) -> Result<(), CliError> {
+    let text = serde_json::to_string_pretty(v).map_err(|e| CliError::Failure(e.into()))?;
+    writeln!(out, "{text}").map_err(io)
+}
+
 fn glyph(c: Option<&crate::domain::coverage::Cell>) -> char {
     match c.and_then(|c| c.best()) {
         None => '.',
@@ -123,12 +138,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
                 "partial": h.partial, "none": h.none, "wilson_low": h.wilson_low, "wilson_high": h.wilson_high,
                 "median_km": h.median_km, "max_km": h.max_km,
             })).collect();
-            writeln!(
-                out,
-                "{}",
-                serde_json::to_string_pretty(&rows).map_err(|e| CliError::Failure(e.into()))?
-            )
-            .map_err(io)?;
+            print_json(out, &rows)?;
         }
         (CoverageView::Hours, ReviewFormat::Csv) => {
             writeln!(out, "band,hour_start,attempts,worked,partial,none,wilson_low,wilson_high,median_km,max_km").map_err(io)?;
@@ -225,12 +235,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
                     "hour_start": c.config.hour_start(i), "attempts": cell.attempts, "worked": cell.worked, "partial": cell.partial, "none": cell.none, "best_report": cell.best_report, "confirmed": cell.confirmed,
                 }))).collect::<Vec<_>>()))).collect::<serde_json::Map<_, _>>(),
             })).collect();
-            writeln!(
-                out,
-                "{}",
-                serde_json::to_string_pretty(&rows).map_err(|e| CliError::Failure(e.into()))?
-            )
-            .map_err(io)?;
+            print_json(out, &rows)?;
         }
         (CoverageView::Links, ReviewFormat::Csv) => {
             writeln!(out, "a,b,distance_km,bearing_deg,band,hour_start,attempts,worked,partial,none,best_report,confirmed").map_err(io)?;
@@ -300,12 +305,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
             let rows: Vec<_> = c.rings.iter().filter(|r| bands.contains(&r.band)).map(|r| json!({
                 "band": r.band.name(), "ring_km": r.ring, "hour_start": r.hour_start, "attempts": r.attempts, "worked": r.worked,
             })).collect();
-            writeln!(
-                out,
-                "{}",
-                serde_json::to_string_pretty(&rows).map_err(|e| CliError::Failure(e.into()))?
-            )
-            .map_err(io)?;
+            print_json(out, &rows)?;
         }
         (CoverageView::Rings, ReviewFormat::Csv) => {
             writeln!(out, "band,ring_km,hour_start,attempts,worked").map_err(io)?;
@@ -436,24 +436,12 @@ pub fn plan_of(
 pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(), CliError> {
     let book = open(db)?;
     let drill = drill_name(&book, a.drill.as_deref())?;
-    let for_date = a
-        .for_date
-        .as_deref()
-        .map(|d| {
-            NaiveDate::parse_from_str(d.trim(), "%Y-%m-%d")
-                .map_err(|_| usage(format!("--for: `{d}` is not a date (YYYY-MM-DD)")))
-        })
-        .transpose()?;
+    let for_date = plan_date(a.for_date.as_deref())?;
     let p = plan_of(&book, drill.as_deref(), a.bin, a.min_attempts, for_date)?;
     let name = |b: Option<Band>| b.map_or(String::new(), |b| b.name().to_string());
     match a.format {
         ReviewFormat::Json => {
-            writeln!(
-                out,
-                "{}",
-                serde_json::to_string_pretty(&p).map_err(|e| CliError::Failure(e.into()))?
-            )
-            .map_err(io)?;
+            print_json(out, &p)?;
         }
         ReviewFormat::Csv => {
             writeln!(out, "hour_start,minutes,primary,alternate,attempts,note").map_err(io)?;
@@ -601,12 +589,7 @@ pub fn crosscheck(
                 "observations": c.observations, "confirmed": c.confirmed, "one_sided": c.one_sided,
                 "contradictions": c.contradictions,
             });
-            writeln!(
-                out,
-                "{}",
-                serde_json::to_string_pretty(&v).map_err(|e| CliError::Failure(e.into()))?
-            )
-            .map_err(io)?;
+            print_json(out, &v)?;
         }
         TextOrJson::Text => {
             let line = format!(
@@ -656,14 +639,7 @@ pub fn report(
             a.output.display()
         )));
     }
-    let for_date = a
-        .for_date
-        .as_deref()
-        .map(|d| {
-            NaiveDate::parse_from_str(d.trim(), "%Y-%m-%d")
-                .map_err(|_| usage(format!("--for: `{d}` is not a date (YYYY-MM-DD)")))
-        })
-        .transpose()?;
+    let for_date = plan_date(a.for_date.as_deref())?;
     let c = load_coverage(&book, drill.as_deref(), CoverageConfig::default())?;
     let p = make_plan(
         &c,
