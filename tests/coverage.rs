@@ -443,3 +443,19 @@ fn a_plan_for_another_date_moves_with_the_sun() {
     );
     assert!(winter.bins[15].note.contains("moved with the Sun"));
 }
+
+#[test]
+fn contradictions_beyond_the_cap_are_counted_not_kept() {
+    use nearsky::domain::coverage::MAX_CONTRADICTIONS;
+    let mut log = Log::new();
+    let n = MAX_CONTRADICTIONS + 50;
+    let t0 = at(4, 0, 0, 0);
+    for i in 0..n {
+        let t = t0 + chrono::Duration::minutes(i as i64 * 30);
+        log.add("Q1AAA", "Q2BBB", t, "7.1", Worked, None)
+            .add("Q2BBB", "Q1AAA", t, "3.6", Worked, None);
+    }
+    let c = log.coverage();
+    assert_eq!(c.contradictions_total, n as u64);
+    assert_eq!(c.contradictions.len(), MAX_CONTRADICTIONS);
+}

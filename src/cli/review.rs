@@ -220,10 +220,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
             if !md {
                 let line = format!(
                     "{} observations: {} confirmed by both sides, {} one-sided; {} contradictions (nearsky crosscheck)",
-                    c.observations,
-                    c.confirmed,
-                    c.one_sided,
-                    c.contradictions.len()
+                    c.observations, c.confirmed, c.one_sided, c.contradictions_total
                 );
                 writeln!(out, "{}", wrap(&line, "", "  ")).map_err(io)?;
             }
@@ -587,6 +584,7 @@ pub fn crosscheck(
         TextOrJson::Json => {
             let v = json!({
                 "observations": c.observations, "confirmed": c.confirmed, "one_sided": c.one_sided,
+                "contradictions_total": c.contradictions_total,
                 "contradictions": c.contradictions,
             });
             print_json(out, &v)?;
@@ -599,6 +597,14 @@ pub fn crosscheck(
             writeln!(out, "{}", wrap(&line, "", "  ")).map_err(io)?;
             if c.contradictions.is_empty() {
                 writeln!(out, "no contradictions").map_err(io)?;
+            } else if c.contradictions_total > c.contradictions.len() as u64 {
+                writeln!(
+                    out,
+                    "{} contradictions; the first {} are listed",
+                    c.contradictions_total,
+                    c.contradictions.len()
+                )
+                .map_err(io)?;
             }
             for x in &c.contradictions {
                 let kind = match x.kind {

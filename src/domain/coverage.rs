@@ -289,6 +289,10 @@ pub struct Sighting<'a> {
     pub rcvd: Option<Report>,
 }
 
+/// Contradictions kept in detail; more are counted only, so that memory stays bounded by the
+/// links and bins whatever the logs hold.
+pub const MAX_CONTRADICTIONS: usize = 1000;
+
 /// A contact an operator's note is attached to.
 #[derive(Debug, Clone)]
 pub struct OperatorNote {
@@ -308,7 +312,10 @@ pub struct Coverage {
     pub hours: Vec<BandHour>,
     pub rings: Vec<RingHour>,
     pub evidence: Vec<Evidence>,
+    /// The first [`MAX_CONTRADICTIONS`] contradictions, in detail.
     pub contradictions: Vec<Contradiction>,
+    /// All contradictions found, also those beyond the detailed list.
+    pub contradictions_total: u64,
     pub observations: u64,
     pub confirmed: u64,
     pub one_sided: u64,
@@ -432,6 +439,7 @@ pub struct CoverageBuilder {
     fc: Vec<FcTop>,
     bin_date: Vec<Option<DateTime<Utc>>>,
     contradictions: Vec<Contradiction>,
+    contradictions_total: u64,
     observations: u64,
     confirmed: u64,
     one_sided: u64,
@@ -461,6 +469,7 @@ impl CoverageBuilder {
             fc: vec![FcTop::default(); bins],
             bin_date: vec![None; bins],
             contradictions: Vec::new(),
+            contradictions_total: 0,
             observations: 0,
             confirmed: 0,
             one_sided: 0,
@@ -549,7 +558,7 @@ impl CoverageBuilder {
                 rec.band,
                 rec.start.format("%H:%M")
             );
-            self.contradictions.push(Contradiction {
+            let found = Contradiction {
                 kind: ContradictionKind::Band,
                 a,
                 b,
@@ -557,11 +566,12 @@ impl CoverageBuilder {
                 times: [p.start, rec.start],
                 bands: [p.band, rec.band],
                 message: msg,
-            });
+            };
             let mut rec = rec;
             rec.flagged = true;
             self.queue.push_back((rec.start, link, rec.id));
             list.push(rec);
+            self.contradiction(found);
             return;
         }
         self.queue.push_back((rec.start, link, rec.id));
@@ -622,7 +632,7 @@ impl CoverageBuilder {
                     (qt - p.start).num_minutes().abs(),
                     self.config.tolerance_minutes
                 );
-                self.contradictions.push(Contradiction {
+                self.contradiction(Contradiction {
                     kind: ContradictionKind::Time,
                     a,
                     b,
@@ -633,6 +643,13 @@ impl CoverageBuilder {
                 });
             }
             self.single(link, p);
+        }
+    }
+
+    fn contradiction(&mut self, c: Contradiction) {
+        self.contradictions_total += 1;
+        if self.contradictions.len() < MAX_CONTRADICTIONS {
+            self.contradictions.push(c);
         }
     }
 
@@ -684,7 +701,7 @@ impl CoverageBuilder {
                 claim.start.format("%H:%M"),
                 other.start.format("%H:%M")
             );
-            self.contradictions.push(Contradiction {
+            self.contradiction(Contradiction {
                 kind: ContradictionKind::Outcome,
                 a,
                 b,
@@ -898,6 +915,7 @@ impl CoverageBuilder {
             rings,
             evidence: Vec::new(),
             contradictions: std::mem::take(&mut self.contradictions),
+            contradictions_total: self.contradictions_total,
             observations: self.observations,
             confirmed: self.confirmed,
             one_sided: self.one_sided,

@@ -109,7 +109,7 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
         ("observations", c.observations.to_string()),
         ("logged by both sides", c.confirmed.to_string()),
         ("worked", format!("{worked} of {attempts}")),
-        ("contradictions", c.contradictions.len().to_string()),
+        ("contradictions", c.contradictions_total.to_string()),
     ] {
         let _ = write!(h, "<span><b>{v}</b> {label}</span>");
     }
@@ -258,6 +258,14 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
     if c.contradictions.is_empty() {
         h.push_str("<p>No contradictions between the stations' logs.</p>");
     } else {
+        if c.contradictions_total > c.contradictions.len() as u64 {
+            let _ = writeln!(
+                h,
+                "<p>{} contradictions; the first {} are listed.</p>",
+                c.contradictions_total,
+                c.contradictions.len()
+            );
+        }
         h.push_str("<table><tr><th>kind</th><th class=\"l\">what</th><th>contacts</th></tr>\n");
         for x in &c.contradictions {
             let kind = match x.kind {

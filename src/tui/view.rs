@@ -458,10 +458,7 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
             lines.push(Line::from(""));
             lines.push(Line::from(format!(
                 "{} observations: {} logged by both sides, {} one-sided; {} contradictions",
-                c.observations,
-                c.confirmed,
-                c.one_sided,
-                c.contradictions.len()
+                c.observations, c.confirmed, c.one_sided, c.contradictions_total
             )));
             if wide {
                 lines.push(Line::from(
