@@ -627,25 +627,66 @@ impl Logbook {
         Ok((out, next))
     }
 
-    /// How many contacts match (deleted ones only when asked).
+    /// How many contacts match (deleted ones only when asked). Counted from indexes: all
+    /// matching rows, minus the deleted ones (a small partial index).
     pub fn count(&self, q: &ContactQuery) -> Result<u64> {
-        let mut stmt = self.conn.prepare_cached(
-            "SELECT count(*) FROM contact c LEFT JOIN drill d ON d.id = c.drill_id
-             WHERE (?1 IS NULL OR d.name = ?1) AND (?2 IS NULL OR c.band = ?2)
-               AND (?3 IS NULL OR c.start_utc >= ?3) AND (?4 IS NULL OR c.start_utc < ?4)
-               AND (?5 OR c.deleted = 0)",
-        )?;
-        let n: i64 = stmt.query_row(
-            params![
-                q.drill,
-                q.band.map(Band::name),
-                q.from.map(ts),
-                q.until.map(ts),
-                q.include_deleted
-            ],
-            |r| r.get(0),
-        )?;
-        Ok(n.max(0) as u64)
+        let drill = match &q.drill {
+            None => None,
+            Some(name) => {
+                let mut stmt = self
+                    .conn
+                    .prepare_cached("SELECT id FROM drill WHERE name = ?1")?;
+                match stmt.query_row([name], |r| r.get::<_, i64>(0)).optional()? {
+                    Some(id) => Some(id),
+                    None => return Ok(0),
+                }
+            }
+        };
+        let mut conds: Vec<&str> = Vec::new();
+        let mut values: Vec<rusqlite::types::Value> = Vec::new();
+        if let Some(id) = drill {
+            conds.push("drill_id = ?");
+            values.push(id.into());
+        }
+        if let Some(b) = q.band {
+            conds.push("band = ?");
+            values.push(b.name().to_string().into());
+        }
+        if let Some(f) = q.from {
+            conds.push("start_utc >= ?");
+            values.push(ts(f).into());
+        }
+        if let Some(u) = q.until {
+            conds.push("start_utc < ?");
+            values.push(ts(u).into());
+        }
+        let numbered = |extra: Option<&str>| {
+            let mut all: Vec<String> = conds
+                .iter()
+                .enumerate()
+                .map(|(i, c)| c.replace('?', &format!("?{}", i + 1)))
+                .collect();
+            all.extend(extra.map(str::to_string));
+            if all.is_empty() {
+                String::new()
+            } else {
+                format!(" WHERE {}", all.join(" AND "))
+            }
+        };
+        let count = |sql: String| -> Result<i64> {
+            let mut stmt = self.conn.prepare_cached(&sql)?;
+            Ok(stmt.query_row(params_from_iter(values.iter()), |r| r.get(0))?)
+        };
+        let total = count(format!("SELECT count(*) FROM contact{}", numbered(None)))?;
+        let deleted = if q.include_deleted {
+            0
+        } else {
+            count(format!(
+                "SELECT count(*) FROM contact{}",
+                numbered(Some("deleted = 1"))
+            ))?
+        };
+        Ok((total - deleted).max(0) as u64)
     }
 
     fn require_reason(reason: &str) -> Result<&str> {

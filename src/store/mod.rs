@@ -28,9 +28,10 @@ pub use registry::{Channel, Drill, Note, RosterEntry, ScheduleSlot, StationProfi
 pub const APPLICATION_ID: i32 = 0x4E53_4B59;
 
 /// The migrations, in order. Schema version N is reached by applying the first N.
-const MIGRATIONS: [&str; 2] = [
+const MIGRATIONS: [&str; 3] = [
     include_str!("migrations/0001_init.sql"),
     include_str!("migrations/0002_schedule.sql"),
+    include_str!("migrations/0003_deleted_index.sql"),
 ];
 
 /// The schema version this build writes.
