@@ -171,6 +171,14 @@ fn main() {
             .unwrap();
     }
     let t = Instant::now();
+    let mut read = 0u64;
+    book.for_each_contact(&ContactQuery::default(), |_| {
+        read += 1;
+        Ok(())
+    })
+    .unwrap();
+    println!("read back:   {read} contacts in {:.2} s (the store's share of the export)", t.elapsed().as_secs_f64());
+    let t = Instant::now();
     let mut sink = std::io::sink();
     let n = transfer::export(
         &book,

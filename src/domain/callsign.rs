@@ -83,11 +83,21 @@ impl Callsign {
                 }
             });
         }
-        let parts: Vec<&str> = text.split('/').collect();
+        // At most three parts; a fourth is an error. No allocation for the split.
+        let mut parts: [&str; 4] = [""; 4];
+        let mut n = 0;
+        for p in text.split('/') {
+            if n == 4 {
+                return Err(CallsignError::TooManyParts(trimmed.to_string()));
+            }
+            parts[n] = p;
+            n += 1;
+        }
+        let parts = &parts[..n];
         if parts.iter().any(|p| p.is_empty()) {
             return Err(CallsignError::EmptyPart(trimmed.to_string()));
         }
-        let (prefix, base, suffix) = match parts.as_slice() {
+        let (prefix, base, suffix) = match parts {
             [base] => (None, *base, None),
             [first, second] if is_suffix(second) => (None, *first, Some(*second)),
             [first, second] if first.len() <= PREFIX_MAX && second.len() > first.len() => {

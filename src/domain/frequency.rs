@@ -287,6 +287,13 @@ impl Band {
 
     /// Parses an ADIF band name, case-insensitively (`40M` is `40m`).
     pub fn parse(input: &str) -> Result<Band, BandError> {
+        // The drill bands, as nearsky writes them, first.
+        match input {
+            "80m" => return Ok(Band::B80m),
+            "60m" => return Ok(Band::B60m),
+            "40m" => return Ok(Band::B40m),
+            _ => {}
+        }
         let t = input.trim();
         BANDS
             .iter()

@@ -65,17 +65,15 @@ impl Report {
             // |value| <= 60, so it fits an i8.
             return Ok(Self::Db(value as i8));
         }
-        let digits: Vec<u8> = match text.split_once('/') {
-            Some((r, s)) if r.len() == 1 && s.len() == 1 => vec![digit(text, r)?, digit(text, s)?],
-            Some(_) => return Err(form()),
-            None if (2..=3).contains(&text.len()) => text
-                .chars()
-                .map(|c| c.to_digit(10).map(|d| d as u8))
-                .collect::<Option<Vec<u8>>>()
-                .ok_or_else(form)?,
-            None => return Err(form()),
+        let b = text.as_bytes();
+        let d = |i: usize| b.get(i).filter(|c| c.is_ascii_digit()).map(|c| c - b'0');
+        let (r, s, t) = match (b.len(), text.split_once('/')) {
+            (3, Some((x, y))) if x.len() == 1 && y.len() == 1 => (digit(text, x)?, digit(text, y)?, None),
+            (_, Some(_)) => return Err(form()),
+            (2, None) => (d(0).ok_or_else(form)?, d(1).ok_or_else(form)?, None),
+            (3, None) => (d(0).ok_or_else(form)?, d(1).ok_or_else(form)?, Some(d(2).ok_or_else(form)?)),
+            _ => return Err(form()),
         };
-        let (r, s, t) = (digits[0], digits[1], digits.get(2).copied());
         if !(1..=5).contains(&r) {
             return Err(ReportError::Readability {
                 text: text.to_string(),

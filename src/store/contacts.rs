@@ -91,8 +91,9 @@ fn read_row(
     };
     macro_rules! parse {
         ($idx:expr, $name:literal, $f:expr) => {{
-            let v: Option<String> = r.get($idx)?;
-            match v.as_deref().map($f).transpose() {
+            // Borrowed from the row: no copy for a value that is parsed anyway.
+            let v: Option<&str> = r.get_ref($idx)?.as_str_or_null().map_err(rusqlite::Error::from)?;
+            match v.map($f).transpose() {
                 Ok(x) => x,
                 Err(e) => return Ok(Err(bad(format!("{}: {}", $name, e)))),
             }
@@ -114,8 +115,8 @@ fn read_row(
     let end: Option<i64> = r.get(10)?;
     let band = parse!(11, "band", Band::parse);
     let freq: Option<i64> = r.get(12)?;
-    let mode_text: String = r.get(13)?;
-    let submode: Option<String> = r.get(14)?;
+    let mode_text: &str = r.get_ref(13)?.as_str().map_err(rusqlite::Error::from)?;
+    let submode: Option<&str> = r.get_ref(14)?.as_str_or_null().map_err(rusqlite::Error::from)?;
     let sent = parse!(15, "report sent", Report::parse);
     let rcvd = parse!(16, "report received", Report::parse);
     let other_power: Option<f64> = r.get(17)?;
@@ -128,7 +129,7 @@ fn read_row(
     let deleted: bool = r.get(24)?;
     let logged_at: i64 = r.get(25)?;
     let row_id: i64 = r.get(26)?;
-    let mode = match Mode::new(&mode_text, submode.as_deref()) {
+    let mode = match Mode::new(mode_text, submode) {
         Ok(m) => m,
         Err(e) => return Ok(Err(bad(format!("mode: {e}")))),
     };

@@ -123,6 +123,12 @@ fn watts(p: Power) -> String {
     }
 }
 
+/// Text as ADI or ADX needs it: unchanged unless ADI needs it folded to ASCII.
+fn adi_text(s: &str, multi: bool, ascii: bool) -> std::borrow::Cow<'_, str> {
+    let plain = s.bytes().all(|b| (0x20..0x7f).contains(&b));
+    if ascii && !plain { std::borrow::Cow::Owned(ascii_text(s, multi)) } else { std::borrow::Cow::Borrowed(s) }
+}
+
 /// `YYYYMMDD` and `HHMMSS` of a UTC time (digits written directly: this runs for every record
 /// of an export).
 fn adif_date_time(t: DateTime<Utc>) -> (String, String) {
@@ -152,13 +158,6 @@ pub fn for_each_field(
     paths: &mut PathCache,
     mut f: impl FnMut(&str, &str) -> std::io::Result<()>,
 ) -> std::io::Result<()> {
-    let text = |s: &str, multi: bool| {
-        if ascii {
-            ascii_text(s, multi)
-        } else {
-            s.to_string()
-        }
-    };
     f("CALL", c.call.as_str())?;
     let (date, time) = adif_date_time(c.start);
     f("QSO_DATE", &date)?;
@@ -224,16 +223,16 @@ pub fn for_each_field(
         )?;
     }
     if let Some(a) = &c.own.antenna {
-        f("MY_ANTENNA", &text(a, false))?;
+        f("MY_ANTENNA", &adi_text(a, false, ascii))?;
     }
     if !c.note.is_empty() {
-        f("NOTES", &text(&c.note, true))?;
+        f("NOTES", &adi_text(&c.note, true, ascii))?;
     }
     f("QSO_COMPLETE", qso_complete(c.outcome))?;
     f("APP_NEARSKY_OUTCOME", c.outcome.key())?;
     f("APP_NEARSKY_UUID", &c.id.to_string())?;
     if let Some(d) = &c.drill {
-        f("APP_NEARSKY_DRILL", &text(d, false))?;
+        f("APP_NEARSKY_DRILL", &adi_text(d, false, ascii))?;
     }
     if let Some(v) = &c.via {
         f("APP_NEARSKY_VIA", v.as_str())?;
