@@ -177,7 +177,10 @@ fn main() {
         Ok(())
     })
     .unwrap();
-    println!("read back:   {read} contacts in {:.2} s (the store's share of the export)", t.elapsed().as_secs_f64());
+    println!(
+        "read back:   {read} contacts in {:.2} s (the store's share of the export)",
+        t.elapsed().as_secs_f64()
+    );
     let t = Instant::now();
     let mut sink = std::io::sink();
     let n = transfer::export(

@@ -68,10 +68,16 @@ impl Report {
         let b = text.as_bytes();
         let d = |i: usize| b.get(i).filter(|c| c.is_ascii_digit()).map(|c| c - b'0');
         let (r, s, t) = match (b.len(), text.split_once('/')) {
-            (3, Some((x, y))) if x.len() == 1 && y.len() == 1 => (digit(text, x)?, digit(text, y)?, None),
+            (3, Some((x, y))) if x.len() == 1 && y.len() == 1 => {
+                (digit(text, x)?, digit(text, y)?, None)
+            }
             (_, Some(_)) => return Err(form()),
             (2, None) => (d(0).ok_or_else(form)?, d(1).ok_or_else(form)?, None),
-            (3, None) => (d(0).ok_or_else(form)?, d(1).ok_or_else(form)?, Some(d(2).ok_or_else(form)?)),
+            (3, None) => (
+                d(0).ok_or_else(form)?,
+                d(1).ok_or_else(form)?,
+                Some(d(2).ok_or_else(form)?),
+            ),
             _ => return Err(form()),
         };
         if !(1..=5).contains(&r) {

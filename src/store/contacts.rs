@@ -1,5 +1,7 @@
 //! Contacts in the logbook: add, edit and delete with a revision trail, page, find duplicates.
 
+use std::collections::HashMap;
+
 use chrono::{DateTime, Utc};
 use rusqlite::{OptionalExtension, Row, TransactionBehavior, params, params_from_iter};
 use uuid::Uuid;
@@ -84,6 +86,14 @@ fn from_ts(s: i64) -> DateTime<Utc> {
 fn read_row(
     r: &Row<'_>,
 ) -> rusqlite::Result<std::result::Result<(StoredContact, i64), StoreError>> {
+    read_row_with(r, None)
+}
+
+/// Like [`read_row`]; column 1 may also hold the drill's id, named through `drills`.
+fn read_row_with(
+    r: &Row<'_>,
+    drills: Option<&HashMap<i64, String>>,
+) -> rusqlite::Result<std::result::Result<(StoredContact, i64), StoreError>> {
     let uuid: String = r.get(0)?;
     let bad = |why: String| StoreError::BadRow {
         uuid: uuid.clone(),
@@ -92,7 +102,10 @@ fn read_row(
     macro_rules! parse {
         ($idx:expr, $name:literal, $f:expr) => {{
             // Borrowed from the row: no copy for a value that is parsed anyway.
-            let v: Option<&str> = r.get_ref($idx)?.as_str_or_null().map_err(rusqlite::Error::from)?;
+            let v: Option<&str> = r
+                .get_ref($idx)?
+                .as_str_or_null()
+                .map_err(rusqlite::Error::from)?;
             match v.map($f).transpose() {
                 Ok(x) => x,
                 Err(e) => return Ok(Err(bad(format!("{}: {}", $name, e)))),
@@ -103,7 +116,11 @@ fn read_row(
         Ok(u) => ContactId(u),
         Err(e) => return Ok(Err(bad(format!("uuid: {e}")))),
     };
-    let drill: Option<String> = r.get(1)?;
+    let drill: Option<String> = match r.get_ref(1)? {
+        rusqlite::types::ValueRef::Integer(id) => drills.and_then(|d| d.get(&id)).cloned(),
+        rusqlite::types::ValueRef::Text(t) => Some(String::from_utf8_lossy(t).into_owned()),
+        _ => None,
+    };
     let own_call = parse!(2, "own call", Callsign::parse);
     let own_operator = parse!(3, "operator", Callsign::parse);
     let own_locator = parse!(4, "own locator", Locator::parse);
@@ -116,7 +133,10 @@ fn read_row(
     let band = parse!(11, "band", Band::parse);
     let freq: Option<i64> = r.get(12)?;
     let mode_text: &str = r.get_ref(13)?.as_str().map_err(rusqlite::Error::from)?;
-    let submode: Option<&str> = r.get_ref(14)?.as_str_or_null().map_err(rusqlite::Error::from)?;
+    let submode: Option<&str> = r
+        .get_ref(14)?
+        .as_str_or_null()
+        .map_err(rusqlite::Error::from)?;
     let sent = parse!(15, "report sent", Report::parse);
     let rcvd = parse!(16, "report received", Report::parse);
     let other_power: Option<f64> = r.get(17)?;
@@ -402,32 +422,44 @@ impl Logbook {
         }
     }
 
-    /// Calls `f` for every contact that matches, oldest first, streaming (for exports).
+    /// Calls `f` for every contact that matches, oldest first, streaming (for exports). Drill
+    /// names come from one look-up table instead of a join per row.
     pub fn for_each_contact(
         &self,
         q: &ContactQuery,
         mut f: impl FnMut(&StoredContact) -> Result<()>,
     ) -> Result<()> {
+        let mut names = HashMap::new();
+        let mut stmt = self.conn.prepare("SELECT id, name FROM drill")?;
+        for row in stmt.query_map([], |r| Ok((r.get::<_, i64>(0)?, r.get::<_, String>(1)?)))? {
+            let (id, name) = row?;
+            names.insert(id, name);
+        }
+        let drill_id = match &q.drill {
+            None => None,
+            Some(d) => match names.iter().find(|(_, n)| *n == d) {
+                Some((id, _)) => Some(*id),
+                None => return Ok(()),
+            },
+        };
+        let columns = COLUMNS.replace("d.name", "c.drill_id");
         let sql = format!(
-            "SELECT {COLUMNS} FROM contact c LEFT JOIN drill d ON d.id = c.drill_id
-             WHERE (?1 IS NULL OR d.name = ?1) AND (?2 IS NULL OR c.band = ?2)
+            "SELECT {columns} FROM contact c
+             WHERE (?1 IS NULL OR c.drill_id = ?1) AND (?2 IS NULL OR c.band = ?2)
                AND (?3 IS NULL OR c.start_utc >= ?3) AND (?4 IS NULL OR c.start_utc < ?4)
                AND (?5 OR c.deleted = 0)
              ORDER BY c.start_utc, c.id"
         );
         let mut stmt = self.conn.prepare(&sql)?;
-        let rows = stmt.query_map(
-            params![
-                q.drill,
-                q.band.map(Band::name),
-                q.from.map(ts),
-                q.until.map(ts),
-                q.include_deleted
-            ],
-            read_row,
-        )?;
-        for r in rows {
-            let (c, _) = r??;
+        let mut rows = stmt.query(params![
+            drill_id,
+            q.band.map(Band::name),
+            q.from.map(ts),
+            q.until.map(ts),
+            q.include_deleted
+        ])?;
+        while let Some(r) = rows.next()? {
+            let (c, _) = read_row_with(r, Some(&names))??;
             f(&c)?;
         }
         Ok(())

@@ -123,10 +123,22 @@ fn watts(p: Power) -> String {
     }
 }
 
+/// Formats into a reused buffer and lends it out.
+fn scratch<'a>(buf: &'a mut String, args: std::fmt::Arguments<'_>) -> &'a str {
+    use std::fmt::Write as _;
+    buf.clear();
+    let _ = buf.write_fmt(args);
+    buf
+}
+
 /// Text as ADI or ADX needs it: unchanged unless ADI needs it folded to ASCII.
 fn adi_text(s: &str, multi: bool, ascii: bool) -> std::borrow::Cow<'_, str> {
     let plain = s.bytes().all(|b| (0x20..0x7f).contains(&b));
-    if ascii && !plain { std::borrow::Cow::Owned(ascii_text(s, multi)) } else { std::borrow::Cow::Borrowed(s) }
+    if ascii && !plain {
+        std::borrow::Cow::Owned(ascii_text(s, multi))
+    } else {
+        std::borrow::Cow::Borrowed(s)
+    }
 }
 
 /// `YYYYMMDD` and `HHMMSS` of a UTC time (digits written directly: this runs for every record
@@ -158,6 +170,8 @@ pub fn for_each_field(
     paths: &mut PathCache,
     mut f: impl FnMut(&str, &str) -> std::io::Result<()>,
 ) -> std::io::Result<()> {
+    // One buffer for the formatted values of this record.
+    let mut buf = String::with_capacity(32);
     f("CALL", c.call.as_str())?;
     let (date, time) = adif_date_time(c.start);
     f("QSO_DATE", &date)?;
@@ -176,10 +190,10 @@ pub fn for_each_field(
         f("SUBMODE", s)?;
     }
     if let Some(r) = c.sent {
-        f("RST_SENT", &r.to_string())?;
+        f("RST_SENT", scratch(&mut buf, format_args!("{r}")))?;
     }
     if let Some(r) = c.rcvd {
-        f("RST_RCVD", &r.to_string())?;
+        f("RST_RCVD", scratch(&mut buf, format_args!("{r}")))?;
     }
     if let Some(p) = c.own.power {
         f("TX_PWR", &watts(p))?;
@@ -230,7 +244,11 @@ pub fn for_each_field(
     }
     f("QSO_COMPLETE", qso_complete(c.outcome))?;
     f("APP_NEARSKY_OUTCOME", c.outcome.key())?;
-    f("APP_NEARSKY_UUID", &c.id.to_string())?;
+    let mut id = [0u8; 36];
+    f(
+        "APP_NEARSKY_UUID",
+        c.id.0.hyphenated().encode_lower(&mut id),
+    )?;
     if let Some(d) = &c.drill {
         f("APP_NEARSKY_DRILL", &adi_text(d, false, ascii))?;
     }
