@@ -41,6 +41,8 @@ pub struct RawRecord {
     /// Things the reader tolerated in this record (text after a field, a missing `<EOR>`, …).
     pub warnings: Vec<String>,
     rejected: Option<RecordError>,
+    /// One bit per field-name hash: a name not in it is surely new (skips the comparisons).
+    seen: u64,
 }
 
 impl RawRecord {
@@ -50,6 +52,7 @@ impl RawRecord {
         self.line = 0;
         self.warnings.clear();
         self.rejected = None;
+        self.seen = 0;
     }
 
     /// Every field in file order: (name, value, line).
@@ -96,6 +99,7 @@ impl RawRecord {
             value: v0..self.data.len(),
             line,
         });
+        self.seen |= name_bit(&self.data[n0..v0]);
     }
 
     /// Adds a field whose name is already upper case.
@@ -112,12 +116,15 @@ impl RawRecord {
             value: v0..self.data.len(),
             line,
         });
+        self.seen |= name_bit(name);
     }
 
     fn has(&self, upper: &str) -> bool {
-        self.fields
-            .iter()
-            .any(|s| &self.data[s.name.clone()] == upper)
+        self.seen & name_bit(upper) != 0
+            && self
+                .fields
+                .iter()
+                .any(|s| &self.data[s.name.clone()] == upper)
     }
 
     fn reject(&mut self, e: RecordError) {
@@ -125,6 +132,15 @@ impl RawRecord {
             self.rejected = Some(e);
         }
     }
+}
+
+/// The bit of a field name in a record's name filter.
+fn name_bit(name: &str) -> u64 {
+    let b = name.as_bytes();
+    let h = b.len() as u64 * 31
+        + b.first().map_or(0, |c| u64::from(*c)) * 7
+        + b.last().map_or(0, |c| u64::from(*c));
+    1 << (h % 64)
 }
 
 /// What the reader found next.
