@@ -40,3 +40,30 @@ fn the_domain_names_no_io_terminal_or_clock() {
         }
     }
 }
+
+#[test]
+fn sqlite_lives_in_the_store_and_the_terminal_in_the_tui() {
+    let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("src");
+    let mut files = Vec::new();
+    rust_files(&root, &mut files);
+    for f in files {
+        let rel = f
+            .strip_prefix(&root)
+            .unwrap()
+            .to_string_lossy()
+            .into_owned();
+        let text = std::fs::read_to_string(&f).unwrap();
+        if !rel.starts_with("store") {
+            assert!(
+                !text.contains("rusqlite"),
+                "{rel} names rusqlite outside the store"
+            );
+        }
+        if !rel.starts_with("tui") {
+            assert!(
+                !text.contains("ratatui") && !text.contains("crossterm"),
+                "{rel} names the terminal outside the tui"
+            );
+        }
+    }
+}
