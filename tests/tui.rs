@@ -7,7 +7,7 @@ use std::process::Command;
 use std::time::Duration;
 
 use chrono::{TimeZone, Utc};
-use nearsky::app::ui::{AppState, Effect, Key, Screen};
+use nearsky::app::ui::{AppState, Effect, Key};
 use nearsky::domain::ContactId;
 use nearsky::store::{ContactQuery, Logbook};
 use nearsky::tui::{run_effect, snapshot, view};
@@ -334,5 +334,4 @@ fn the_binary_in_tmux_logs_what_is_typed_and_survives_sigkill() {
     let (page, _) = book.page(&ContactQuery::default(), 10, None).unwrap();
     assert!(page.iter().any(|c| c.contact.call.as_str() == "Q4SHL"
         && c.contact.rcvd.map(|r| r.to_string()) == Some("57".into())));
-    let _ = Screen::Log;
 }

@@ -400,12 +400,8 @@ fn truncate(s: &str, n: usize) -> String {
     s.chars().take(n).collect()
 }
 
-pub fn edit(
-    out: &mut impl Write,
-    db: Option<&Path>,
-    a: &EditArgs,
-    now: DateTime<Utc>,
-) -> Result<(), CliError> {
+/// Corrects a contact. A bare time of day (`--time 14:05`) falls on the contact's own date.
+pub fn edit(out: &mut impl Write, db: Option<&Path>, a: &EditArgs) -> Result<(), CliError> {
     let mut book = open(db)?;
     let stored = book.find_contact(&a.id).map_err(st)?;
     let c = &stored.contact;
@@ -452,7 +448,6 @@ pub fn edit(
         today: c.start.date_naive(),
         origin: c.origin.clone(),
     };
-    let _ = now;
     let updated = form.validate(&ctx).map_err(usage)?;
     book.edit_contact(&updated, &a.reason).map_err(st)?;
     writeln!(out, "edited {}", describe(&updated)).map_err(io)?;

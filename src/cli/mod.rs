@@ -87,7 +87,7 @@ fn run(cli: Cli) -> Result<(), CliError> {
         }
         Some(Command::Note(a)) => book::note(&mut out, db, &a, now),
         Some(Command::List(a)) => book::list(&mut out, db, &a),
-        Some(Command::Edit(a)) => book::edit(&mut out, db, &a, now),
+        Some(Command::Edit(a)) => book::edit(&mut out, db, &a),
         Some(Command::Delete(a)) => book::delete(&mut out, db, &a),
         Some(Command::Drill(c)) => book::drill(&mut out, db, &c, now),
         Some(Command::Station(c)) => book::station(&mut out, db, &c, now),
