@@ -68,6 +68,37 @@ pub struct Cursor {
     row: i64,
 }
 
+/// The bound values of a contact's columns, in the order both the insert and the update list
+/// them (own station, other station, time, radio, reports, outcome, via, note), between what
+/// each statement puts before and after.
+macro_rules! contact_params {
+    ($c:ident, [$($before:expr),*], [$($after:expr),*]) => {
+        params![
+            $($before,)*
+            $c.own.call.as_str(),
+            $c.own.operator.as_ref().map(Callsign::as_str),
+            $c.own.locator.as_ref().map(Locator::as_str),
+            $c.own.power.map(Power::watts),
+            $c.own.antenna.as_deref(),
+            $c.call.as_str(),
+            $c.locator.as_ref().map(Locator::as_str),
+            ts($c.start),
+            $c.end.map(ts),
+            $c.band.name(),
+            $c.frequency.map(|f| f.hz() as i64),
+            $c.mode.mode(),
+            $c.mode.submode(),
+            $c.sent.map(|r| r.to_string()),
+            $c.rcvd.map(|r| r.to_string()),
+            $c.other_power.map(Power::watts),
+            $c.outcome.key(),
+            $c.via.as_ref().map(Callsign::as_str),
+            $c.note.as_str(),
+            $($after),*
+        ]
+    };
+}
+
 const COLUMNS: &str = "c.uuid, d.name, c.own_call, c.own_operator, c.own_locator, c.own_power_w, \
     c.own_antenna, c.call, c.locator, c.start_utc, c.end_utc, c.band, c.freq_hz, c.mode, \
     c.submode, c.rst_sent, c.rst_rcvd, c.other_power_w, c.outcome, c.via, c.note, \
@@ -385,32 +416,11 @@ impl Logbook {
              VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17,
                 ?18, ?19, ?20, ?21, ?22, ?23, 1, 0, ?24)",
         )?;
-        let r = stmt.execute(params![
-            c.id.to_string(),
-            drill,
-            c.own.call.as_str(),
-            c.own.operator.as_ref().map(Callsign::as_str),
-            c.own.locator.as_ref().map(Locator::as_str),
-            c.own.power.map(Power::watts),
-            c.own.antenna.as_deref(),
-            c.call.as_str(),
-            c.locator.as_ref().map(Locator::as_str),
-            ts(c.start),
-            c.end.map(ts),
-            c.band.name(),
-            c.frequency.map(|f| f.hz() as i64),
-            c.mode.mode(),
-            c.mode.submode(),
-            c.sent.map(|r| r.to_string()),
-            c.rcvd.map(|r| r.to_string()),
-            c.other_power.map(Power::watts),
-            c.outcome.key(),
-            c.via.as_ref().map(Callsign::as_str),
-            c.note.as_str(),
-            origin_station,
-            origin_file,
-            ts(logged_at),
-        ]);
+        let r = stmt.execute(contact_params!(
+            c,
+            [c.id.to_string(), drill],
+            [origin_station, origin_file, ts(logged_at)]
+        ));
         match r {
             Err(e) if e.sqlite_error_code() == Some(rusqlite::ErrorCode::ConstraintViolation) => {
                 Err(StoreError::Invalid(format!(
@@ -777,30 +787,7 @@ impl Logbook {
                 rst_rcvd = ?17, other_power_w = ?18, outcome = ?19, via = ?20, note = ?21,
                 revision = revision + 1, logged_at = ?22
              WHERE id = ?1",
-            params![
-                row,
-                drill,
-                c.own.call.as_str(),
-                c.own.operator.as_ref().map(Callsign::as_str),
-                c.own.locator.as_ref().map(Locator::as_str),
-                c.own.power.map(Power::watts),
-                c.own.antenna.as_deref(),
-                c.call.as_str(),
-                c.locator.as_ref().map(Locator::as_str),
-                ts(c.start),
-                c.end.map(ts),
-                c.band.name(),
-                c.frequency.map(|f| f.hz() as i64),
-                c.mode.mode(),
-                c.mode.submode(),
-                c.sent.map(|r| r.to_string()),
-                c.rcvd.map(|r| r.to_string()),
-                c.other_power.map(Power::watts),
-                c.outcome.key(),
-                c.via.as_ref().map(Callsign::as_str),
-                c.note.as_str(),
-                ts(logged_at),
-            ],
+            contact_params!(c, [row, drill], [ts(logged_at)]),
         )?;
         tx.commit()?;
         Ok(())
