@@ -122,10 +122,10 @@ fn rank_bands(c: &Coverage, bin: usize, min_attempts: u32) -> Vec<Ranked> {
 
 /// Strength of each link in a bin as a dense matrix over the stations: its best band's lower
 /// Wilson limit, for links that worked; negative where there is none.
-fn link_strengths(c: &Coverage, bin: usize) -> Vec<f64> {
+fn link_strengths(c: &Coverage, bin: usize, active: &[usize]) -> Vec<f64> {
     let n = c.stations.len();
     let mut m = vec![-1.0; n * n];
-    for l in &c.links {
+    for l in active.iter().map(|i| &c.links[*i]) {
         let best = l
             .cells
             .values()
@@ -146,7 +146,12 @@ fn link_strengths(c: &Coverage, bin: usize) -> Vec<f64> {
     m
 }
 
-fn plan_for_bin(c: &Coverage, bin: usize, cfg: &PlanConfig) -> (PlanBin, Vec<RelayNeed>) {
+fn plan_for_bin(
+    c: &Coverage,
+    bin: usize,
+    cfg: &PlanConfig,
+    active: &[usize],
+) -> (PlanBin, Vec<RelayNeed>) {
     let attempts: u32 = c
         .hours
         .iter()
@@ -182,8 +187,8 @@ fn plan_for_bin(c: &Coverage, bin: usize, cfg: &PlanConfig) -> (PlanBin, Vec<Rel
     let mut relays = Vec::new();
     if let Some(band) = primary {
         let n = c.stations.len();
-        let strength = link_strengths(c, bin);
-        for l in &c.links {
+        let strength = link_strengths(c, bin, active);
+        for l in active.iter().map(|i| &c.links[*i]) {
             let Some(Some(cell)) = l.cells.get(&band).and_then(|row| row.get(bin)) else {
                 continue;
             };
@@ -263,8 +268,22 @@ fn minute_at_phase(phase: f64, rise: f64, day_len: f64) -> f64 {
 /// Makes the plan from a drill's coverage.
 pub fn make_plan(c: &Coverage, cfg: &PlanConfig) -> Plan {
     let bins = c.config.bins();
-    let per_bin: Vec<(PlanBin, Vec<RelayNeed>)> =
-        (0..bins).map(|b| plan_for_bin(c, b, cfg)).collect();
+    // For each bin, the links tried in it: the per-bin work then follows the cells, not the
+    // links times the bins.
+    let mut active: Vec<Vec<usize>> = vec![Vec::new(); bins];
+    for (i, l) in c.links.iter().enumerate() {
+        for b in 0..bins {
+            if l.cells
+                .values()
+                .any(|row| row.get(b).is_some_and(Option::is_some))
+            {
+                active[b].push(i);
+            }
+        }
+    }
+    let per_bin: Vec<(PlanBin, Vec<RelayNeed>)> = (0..bins)
+        .map(|b| plan_for_bin(c, b, cfg, &active[b]))
+        .collect();
     let shift = match (cfg.for_date, c.first_date, c.centre) {
         (Some(to), Some(from), Some(centre)) if to != from => Some((to, from, centre)),
         _ => None,
