@@ -229,7 +229,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
             let rows: Vec<_> = c.links.iter().map(|l| json!({
                 "a": l.a, "b": l.b, "distance_km": l.distance_km, "bearing_deg": l.bearing_deg,
                 "bands": l.cells.iter().filter(|(b, _)| bands.contains(b)).map(|(b, cells)| (b.name().to_string(), serde_json::Value::Array(cells.iter().enumerate().filter_map(|(i, cell)| cell.as_ref().map(|cell| json!({
-                    "hour_start": c.config.hour_start(i), "attempts": cell.attempts, "worked": cell.worked, "partial": cell.partial, "none": cell.none, "best_report": cell.best_report, "confirmed": cell.confirmed,
+                    "hour_start": c.config.hour_start(i), "attempts": cell.attempts, "worked": cell.worked, "partial": cell.partial, "none": cell.none, "best_report": cell.best_report.map(|r| r.to_string()), "confirmed": cell.confirmed,
                 }))).collect::<Vec<_>>()))).collect::<serde_json::Map<_, _>>(),
             })).collect();
             print_json(out, &rows)?;
@@ -253,7 +253,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
                                 cell.worked,
                                 cell.partial,
                                 cell.none,
-                                cell.best_report.clone().unwrap_or_default(),
+                                cell.best_report.map(|r| r.to_string()).unwrap_or_default(),
                                 cell.confirmed
                             )
                             .map_err(io)?;

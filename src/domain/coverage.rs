@@ -146,11 +146,9 @@ pub struct Cell {
     pub partial: u32,
     pub none: u32,
     /// Best report received in the cell (by either side).
-    pub best_report: Option<String>,
+    pub best_report: Option<Report>,
     /// At least one observation in the cell was logged by both sides.
     pub confirmed: bool,
-    #[serde(skip)]
-    best_rank: Option<(u8, i32)>,
 }
 
 impl Cell {
@@ -163,10 +161,9 @@ impl Cell {
         }
         self.confirmed |= o.confirmed;
         if let Some(r) = o.best_report
-            && self.best_rank.is_none_or(|b| r.rank() > b)
+            && self.best_report.is_none_or(|b| r.rank() > b.rank())
         {
-            self.best_rank = Some(r.rank());
-            self.best_report = Some(r.to_string());
+            self.best_report = Some(r);
         }
     }
 
