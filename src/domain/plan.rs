@@ -272,12 +272,12 @@ pub fn make_plan(c: &Coverage, cfg: &PlanConfig) -> Plan {
     // links times the bins.
     let mut active: Vec<Vec<usize>> = vec![Vec::new(); bins];
     for (i, l) in c.links.iter().enumerate() {
-        for b in 0..bins {
+        for (b, list) in active.iter_mut().enumerate() {
             if l.cells
                 .values()
                 .any(|row| row.get(b).is_some_and(Option::is_some))
             {
-                active[b].push(i);
+                list.push(i);
             }
         }
     }
