@@ -205,32 +205,29 @@ pub fn export(
         path: "output".into(),
         source,
     };
-    let keep = |c: &crate::domain::Contact| include_attempts || c.outcome.made_contact();
-    let wrap = |e: io::Error| StoreError::Invalid(format!("writing the export: {e}"));
+    // Every contact the query selects and the export keeps, through one writer; returns
+    // how many were written.
+    let each = |write: &mut dyn FnMut(&crate::store::StoredContact) -> io::Result<()>| -> Result<usize, TransferError> {
+        let mut n = 0;
+        book.for_each_contact(q, |s| {
+            if include_attempts || s.contact.outcome.made_contact() {
+                n += 1;
+                write(s).map_err(|e| StoreError::Invalid(format!("writing the export: {e}")))?;
+            }
+            Ok(())
+        })?;
+        Ok(n)
+    };
     match format {
         ExportFormat::Adi => {
             let mut w = adif::adi::AdiWriter::new(out, created).map_err(io_err)?;
-            book.for_each_contact(q, |s| {
-                if keep(&s.contact) {
-                    w.write(&s.contact).map_err(wrap)
-                } else {
-                    Ok(())
-                }
-            })?;
-            let n = w.count;
+            let n = each(&mut |s| w.write(&s.contact))?;
             w.finish().map_err(io_err)?;
             Ok(n)
         }
         ExportFormat::Adx => {
             let mut w = AdxWriter::new(out, created).map_err(io_err)?;
-            book.for_each_contact(q, |s| {
-                if keep(&s.contact) {
-                    w.write(&s.contact).map_err(wrap)
-                } else {
-                    Ok(())
-                }
-            })?;
-            let n = w.count;
+            let n = each(&mut |s| w.write(&s.contact))?;
             w.finish().map_err(io_err)?;
             Ok(n)
         }
@@ -238,14 +235,8 @@ pub fn export(
             let mut out = out;
             let mut paths = crate::domain::geo::PathCache::new();
             crate::formats::csv::write_header(&mut out).map_err(io_err)?;
-            let mut n = 0;
-            book.for_each_contact(q, |s| {
-                if keep(&s.contact) {
-                    n += 1;
-                    crate::formats::csv::write_row(&mut out, &s.contact, s.deleted, &mut paths)
-                        .map_err(wrap)?;
-                }
-                Ok(())
+            let n = each(&mut |s| {
+                crate::formats::csv::write_row(&mut out, &s.contact, s.deleted, &mut paths)
             })?;
             out.flush().map_err(io_err)?;
             Ok(n)

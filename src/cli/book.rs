@@ -12,7 +12,7 @@ use super::args::{
     DeleteArgs, DrillCommand, EditArgs, ListArgs, ListFormat, LogArgs, NoteArgs, RosterCommand,
     StationCommand, TextOrJson, WriterArgs,
 };
-use super::{CliError, usage};
+use super::{CliError, band_flag, io, usage};
 use crate::domain::geo;
 use crate::domain::{
     Band, Callsign, Contact, ContactForm, ContactId, FormContext, Locator, Origin, Outcome, Power,
@@ -53,10 +53,6 @@ fn st(e: StoreError) -> CliError {
         StoreError::Invalid(_) | StoreError::NotFound { .. } => usage(e),
         other => CliError::Failure(other.into()),
     }
-}
-
-fn io(e: std::io::Error) -> CliError {
-    CliError::Failure(e.into())
 }
 
 fn rfc3339(t: DateTime<Utc>) -> String {
@@ -299,12 +295,7 @@ pub fn note(
 ) -> Result<(), CliError> {
     let mut book = open(db)?;
     let at = parse_time(a.time.as_deref(), now, "--time")?;
-    let band = a
-        .band
-        .as_deref()
-        .map(Band::parse)
-        .transpose()
-        .map_err(|e| usage(format!("--band: {e}")))?;
+    let band = band_flag(a.band.as_deref())?;
     let station = own_snapshot(&book, at)?.call;
     let n = Note {
         id: Uuid::new_v4(),
@@ -332,12 +323,7 @@ pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(),
         Some(d) => Some(d.to_string()),
         None => book.current_drill().map_err(st)?,
     };
-    let band = a
-        .band
-        .as_deref()
-        .map(Band::parse)
-        .transpose()
-        .map_err(|e| usage(format!("--band: {e}")))?;
+    let band = band_flag(a.band.as_deref())?;
     let q = ContactQuery {
         drill,
         band,

@@ -4,12 +4,8 @@ use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use super::args::{CoverageArgs, CoverageView, DemoArgs, PlanArgs, ReviewFormat};
-use super::{CliError, review, usage};
+use super::{CliError, io, review, usage};
 use crate::store::{ContactQuery, Logbook};
-
-fn io(e: std::io::Error) -> CliError {
-    CliError::Failure(e.into())
-}
 
 /// The demo logbook's path: `--db`, or `demo.db` in the data directory (never the operator's
 /// own logbook).

@@ -48,6 +48,18 @@ impl CliError {
     }
 }
 
+/// A failed write to the output: exit code 1.
+pub(crate) fn io(e: std::io::Error) -> CliError {
+    CliError::Failure(e.into())
+}
+
+/// The `--band` flag, checked.
+pub(crate) fn band_flag(text: Option<&str>) -> Result<Option<crate::domain::Band>, CliError> {
+    text.map(crate::domain::Band::parse)
+        .transpose()
+        .map_err(|e| usage(format!("--band: {e}")))
+}
+
 /// Turns a validation error into a usage error (exit code 2).
 pub(crate) fn usage(e: impl std::fmt::Display) -> CliError {
     CliError::Usage(e.to_string())

@@ -12,15 +12,11 @@ use serde_json::json;
 
 use super::args::{CoverageArgs, CoverageView, CrosscheckArgs, PlanArgs, ReviewFormat, TextOrJson};
 use super::book::open;
-use super::{CliError, usage};
+use super::{CliError, band_flag, io, usage};
 use crate::domain::coverage::{Coverage, CoverageConfig};
 use crate::domain::plan::{Plan, PlanConfig, make_plan};
 use crate::domain::{Band, Outcome};
 use crate::store::Logbook;
-
-fn io(e: std::io::Error) -> CliError {
-    CliError::Failure(e.into())
-}
 
 fn drill_name(book: &Logbook, given: Option<&str>) -> Result<Option<String>, CliError> {
     let fail = |e: crate::store::StoreError| CliError::Failure(e.into());
@@ -112,12 +108,7 @@ fn opt(x: Option<f64>, digits: usize) -> String {
 pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Result<(), CliError> {
     let book = open(db)?;
     let drill = drill_name(&book, a.drill.as_deref())?;
-    let band = a
-        .band
-        .as_deref()
-        .map(Band::parse)
-        .transpose()
-        .map_err(|e| usage(format!("--band: {e}")))?;
+    let band = band_flag(a.band.as_deref())?;
     let config = CoverageConfig {
         bin_minutes: a.bin,
         tolerance_minutes: a.tolerance,
@@ -481,11 +472,7 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
                 )
                 .map_err(io)?;
                 for r in &p.relays {
-                    let cands: Vec<String> = r
-                        .candidates
-                        .iter()
-                        .map(|c| format!("{} ({:.2})", c.call, c.strength))
-                        .collect();
+                    let cands = r.candidates_text(usize::MAX);
                     writeln!(
                         out,
                         "| {} | {}–{} | {} | {} |",
@@ -496,7 +483,7 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
                         if cands.is_empty() {
                             "none".into()
                         } else {
-                            cands.join(", ")
+                            cands
                         }
                     )
                     .map_err(io)?;
@@ -539,12 +526,7 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
                 )
                 .map_err(io)?;
                 for r in &p.relays {
-                    let cands: Vec<String> = r
-                        .candidates
-                        .iter()
-                        .take(3)
-                        .map(|c| format!("{} ({:.2})", c.call, c.strength))
-                        .collect();
+                    let cands = r.candidates_text(3);
                     let line = format!(
                         "{} {}-{} on {}: {}",
                         r.hour_start,
@@ -554,7 +536,7 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
                         if cands.is_empty() {
                             "no relay candidate".into()
                         } else {
-                            cands.join(", ")
+                            cands
                         }
                     );
                     writeln!(out, "{}", wrap(&line, "  ", "      ")).map_err(io)?;

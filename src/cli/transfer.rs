@@ -7,14 +7,10 @@ use chrono::{DateTime, Utc};
 
 use super::args::{ExportArgs, ExportFormatArg, ImportArgs};
 use super::book::open;
-use super::{CliError, usage};
+use super::{CliError, io, usage};
 use crate::app::transfer::{self, ExportFormat, ImportOptions};
 use crate::domain::Callsign;
 use crate::store::ContactQuery;
-
-fn io(e: std::io::Error) -> CliError {
-    CliError::Failure(e.into())
-}
 
 /// Runs `nearsky import`; returns whether any records were rejected.
 pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result<bool, CliError> {

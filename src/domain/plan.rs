@@ -69,6 +69,19 @@ pub struct RelayNeed {
     pub candidates: Vec<RelayCandidate>,
 }
 
+impl RelayNeed {
+    /// The strongest `most` candidates as `Q1AAA (0.42), Q2BBB (0.31)`; empty when none.
+    pub fn candidates_text(&self, most: usize) -> String {
+        let parts: Vec<String> = self
+            .candidates
+            .iter()
+            .take(most)
+            .map(|c| format!("{} ({:.2})", c.call, c.strength))
+            .collect();
+        parts.join(", ")
+    }
+}
+
 /// The plan for the next drill.
 #[derive(Debug, Clone, PartialEq, Serialize, Deserialize)]
 pub struct Plan {

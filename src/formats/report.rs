@@ -230,12 +230,7 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
     if !plan.relays.is_empty() {
         h.push_str("<h3>Links expected to fail even on the primary band, and relay candidates</h3><table><tr><th>UTC</th><th>link</th><th>band</th><th class=\"l\">candidates (weaker link's Wilson low)</th></tr>\n");
         for r in &plan.relays {
-            let cands: Vec<String> = r
-                .candidates
-                .iter()
-                .take(4)
-                .map(|c| format!("{} ({:.2})", esc(&c.call), c.strength))
-                .collect();
+            let cands = r.candidates_text(4);
             let _ = writeln!(
                 h,
                 "<tr><td>{}</td><td>{}–{}</td><td>{}</td><td class=\"l\">{}</td></tr>",
@@ -246,7 +241,7 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
                 if cands.is_empty() {
                     "none".into()
                 } else {
-                    cands.join(", ")
+                    esc(&cands)
                 }
             );
         }

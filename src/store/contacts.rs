@@ -311,13 +311,18 @@ fn snapshot_json(c: &Contact) -> Result<String> {
 }
 
 impl Logbook {
-    fn drill_id(tx: &rusqlite::Connection, name: &Option<String>) -> Result<Option<i64>> {
-        let Some(name) = name else { return Ok(None) };
+    /// The row id of a drill by name; a drill that is named but missing is an error.
+    pub(super) fn drill_id(tx: &rusqlite::Connection, name: Option<&str>) -> Result<Option<i64>> {
+        name.map(|n| Self::named_drill_id(tx, n)).transpose()
+    }
+
+    /// The row id of the drill called `name`.
+    pub(super) fn named_drill_id(tx: &rusqlite::Connection, name: &str) -> Result<i64> {
         let mut stmt = tx.prepare_cached("SELECT id FROM drill WHERE name = ?1")?;
         let id: Option<i64> = stmt.query_row([name], |r| r.get(0)).optional()?;
-        id.map(Some).ok_or_else(|| StoreError::NotFound {
+        id.ok_or_else(|| StoreError::NotFound {
             what: "drill",
-            key: name.clone(),
+            key: name.to_string(),
         })
     }
 
@@ -403,7 +408,7 @@ impl Logbook {
         c: &Contact,
         logged_at: DateTime<Utc>,
     ) -> Result<()> {
-        let drill = Self::drill_id(tx, &c.drill)?;
+        let drill = Self::drill_id(tx, c.drill.as_deref())?;
         let (origin_station, origin_file) = match &c.origin {
             Origin::LoggedHere => (None, None),
             Origin::Imported { station, file } => (Some(station.as_str()), Some(file.as_str())),
@@ -778,7 +783,7 @@ impl Logbook {
         let row = Self::keep_revision(&tx, &current, "edit", reason)?;
         let logged_at = current.logged_at;
         // Rewrite every column in place (the row id, and so the revision trail, stays).
-        let drill = Self::drill_id(&tx, &updated.drill)?;
+        let drill = Self::drill_id(&tx, updated.drill.as_deref())?;
         let c = updated;
         tx.execute(
             "UPDATE contact SET drill_id = ?2, own_call = ?3, own_operator = ?4, own_locator = ?5,

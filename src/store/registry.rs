@@ -172,15 +172,7 @@ impl Logbook {
         let tx = self
             .conn
             .transaction_with_behavior(TransactionBehavior::Immediate)?;
-        let id: Option<i64> = tx
-            .query_row("SELECT id FROM drill WHERE name = ?1", [drill], |r| {
-                r.get(0)
-            })
-            .optional()?;
-        let id = id.ok_or_else(|| StoreError::NotFound {
-            what: "drill",
-            key: drill.to_string(),
-        })?;
+        let id = Logbook::named_drill_id(&tx, drill)?;
         tx.execute("DELETE FROM schedule_slot WHERE drill_id = ?1", [id])?;
         for s in slots {
             tx.execute(
@@ -456,15 +448,7 @@ impl Logbook {
         let tx = self
             .conn
             .transaction_with_behavior(TransactionBehavior::Immediate)?;
-        let id: Option<i64> = tx
-            .query_row("SELECT id FROM drill WHERE name = ?1", [drill], |r| {
-                r.get(0)
-            })
-            .optional()?;
-        let id = id.ok_or_else(|| StoreError::NotFound {
-            what: "drill",
-            key: drill.to_string(),
-        })?;
+        let id = Logbook::named_drill_id(&tx, drill)?;
         tx.execute(
             "INSERT INTO channel (drill_id, name, band, freq_hz, mode, submode) VALUES (?1, ?2, ?3, ?4, ?5, ?6)
              ON CONFLICT(drill_id, name) DO UPDATE SET band = excluded.band, freq_hz = excluded.freq_hz,
@@ -513,17 +497,7 @@ impl Logbook {
         let tx = self
             .conn
             .transaction_with_behavior(TransactionBehavior::Immediate)?;
-        let drill: Option<i64> = match &n.drill {
-            None => None,
-            Some(d) => Some(
-                tx.query_row("SELECT id FROM drill WHERE name = ?1", [d], |r| r.get(0))
-                    .optional()?
-                    .ok_or_else(|| StoreError::NotFound {
-                        what: "drill",
-                        key: d.clone(),
-                    })?,
-            ),
-        };
+        let drill = Logbook::drill_id(&tx, n.drill.as_deref())?;
         tx.execute(
             "INSERT INTO propagation_note (uuid, drill_id, at_utc, band, station, text) VALUES (?1, ?2, ?3, ?4, ?5, ?6)",
             params![n.id.to_string(), drill, ts(n.at), n.band.map(Band::name), n.station.as_str(), text],

@@ -111,16 +111,7 @@ pub fn run_effect(book: &mut Logbook, e: Effect, now: DateTime<Utc>) -> Done {
             Ok(s) => Done::Loaded(Box::new(s)),
             Err(e) => fail(e),
         },
-        Effect::LoadReview => {
-            let drill = book.current_drill().ok().flatten();
-            match load_coverage(book, drill.as_deref(), CoverageConfig::default()) {
-                Ok(c) => {
-                    let p = make_plan(&c, &PlanConfig::default());
-                    Done::Review(Box::new((c, p)))
-                }
-                Err(e) => Done::Failed(e.to_string()),
-            }
-        }
+        Effect::LoadReview => review(book),
         Effect::SaveRosterOrder(calls) => match book.roster_reorder(&calls) {
             Ok(()) => Done::Noted,
             Err(e) => fail(e),
@@ -177,7 +168,7 @@ fn review_worker(path: std::path::PathBuf, tx: mpsc::Sender<Msg>) -> mpsc::Sende
         };
         while req_rx.recv().is_ok() {
             while req_rx.try_recv().is_ok() {}
-            let d = run_effect_review(&book);
+            let d = review(&book);
             if tx.send(Msg::Review(d)).is_err() {
                 break;
             }
@@ -186,7 +177,8 @@ fn review_worker(path: std::path::PathBuf, tx: mpsc::Sender<Msg>) -> mpsc::Sende
     req_tx
 }
 
-fn run_effect_review(book: &Logbook) -> Done {
+/// Coverage and plan of the drill in use.
+fn review(book: &Logbook) -> Done {
     let drill = book.current_drill().ok().flatten();
     match load_coverage(book, drill.as_deref(), CoverageConfig::default()) {
         Ok(c) => {

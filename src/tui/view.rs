@@ -565,12 +565,7 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                     bold(),
                 )));
                 for r in &plan.relays {
-                    let cands: Vec<String> = r
-                        .candidates
-                        .iter()
-                        .take(3)
-                        .map(|c| format!("{} ({:.2})", c.call, c.strength))
-                        .collect();
+                    let cands = r.candidates_text(3);
                     lines.push(Line::from(format!(
                         "{} {}-{} {}: {}",
                         r.hour_start,
@@ -580,7 +575,7 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                         if cands.is_empty() {
                             "none".into()
                         } else {
-                            cands.join(", ")
+                            cands
                         }
                     )));
                 }
