@@ -1,20 +1,13 @@
 //! The logbook commands run as an operator runs them, on a temporary logbook.
 
+mod common;
+
 use std::path::Path;
-use std::process::Command;
 
 fn run(db: &Path, args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_nearsky"))
-        .arg("--db")
-        .arg(db)
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
+    let mut all = vec!["--db", db.to_str().unwrap()];
+    all.extend_from_slice(args);
+    common::nearsky(&all)
 }
 
 fn ok(db: &Path, args: &[&str]) -> String {

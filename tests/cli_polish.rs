@@ -1,24 +1,11 @@
 //! The command line as a whole: every command's --help with an example, completions and the
 //! man page, and the config file under command-line flags.
 
-use std::process::Command;
+mod common;
 
 use clap::CommandFactory;
+use common::nearsky_env as run;
 use nearsky::cli::Cli;
-
-fn run(args: &[&str], envs: &[(&str, &str)]) -> (i32, String, String) {
-    let mut c = Command::new(env!("CARGO_BIN_EXE_nearsky"));
-    c.args(args);
-    for (k, v) in envs {
-        c.env(k, v);
-    }
-    let out = c.output().unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
 
 /// Every command path, e.g. ["drill", "new"], except the hidden test helper.
 fn paths(cmd: &clap::Command, prefix: Vec<String>, out: &mut Vec<Vec<String>>) {

@@ -1,18 +1,8 @@
 //! `nearsky path` and `nearsky sun` run as a user runs them.
 
-use std::process::Command;
+mod common;
 
-fn nearsky(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_nearsky"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use common::nearsky;
 
 fn json(args: &[&str]) -> serde_json::Value {
     let (code, out, err) = nearsky(args);

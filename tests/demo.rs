@@ -1,6 +1,8 @@
 //! The demo drill: deterministic, and its coverage and plan show what the scenario builds in.
 
-use std::process::Command;
+mod common;
+
+use common::nearsky;
 
 use nearsky::demo::scenario::{DRILL_NAME, generate};
 use nearsky::domain::coverage::{ContradictionKind, CoverageConfig, OperatorNote, coverage};
@@ -115,18 +117,6 @@ fn the_demo_follows_the_physics_it_was_built_on() {
         plan.relays.iter().any(|r| !r.candidates.is_empty()),
         "relay candidates for failing links"
     );
-}
-
-fn nearsky(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_nearsky"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
 }
 
 #[test]

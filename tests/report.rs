@@ -1,20 +1,12 @@
 //! The after-action report: a self-contained HTML page with every section, parsed with an HTML
 //! parser (the `tl` crate) and loaded in a real browser (headless Chromium) when one is there.
 
+mod common;
+
 use std::path::Path;
 use std::process::Command;
 
-fn nearsky(args: &[&str]) -> (i32, String, String) {
-    let out = Command::new(env!("CARGO_BIN_EXE_nearsky"))
-        .args(args)
-        .output()
-        .unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8_lossy(&out.stdout).into_owned(),
-        String::from_utf8_lossy(&out.stderr).into_owned(),
-    )
-}
+use common::nearsky;
 
 fn demo_report(dir: &Path) -> (std::path::PathBuf, String) {
     let db = dir.join("demo.db");

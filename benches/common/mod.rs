@@ -30,8 +30,9 @@ impl Rng {
     }
 }
 
-pub fn build(path: &std::path::Path, contacts: u64, stations: usize) -> Logbook {
-    let mut book = Logbook::open(path).unwrap();
+/// `contacts` generated contacts among `stations` stations spread over a 6° × 6° region,
+/// over one day, on 80, 60 and 40 m, with random outcomes (deterministic).
+pub fn generated(contacts: u64, stations: usize) -> impl Iterator<Item = Contact> {
     let mut rng = Rng(0x5eed ^ contacts);
     let calls: Vec<Callsign> = (0..stations)
         .map(|i| {
@@ -63,14 +64,13 @@ pub fn build(path: &std::path::Path, contacts: u64, stations: usize) -> Logbook 
     ];
     let mode = Mode::parse("LSB").unwrap();
     let t0 = DateTime::<Utc>::from_timestamp(1_759_536_000, 0).unwrap();
-    let mut batch = Vec::with_capacity(100_000);
-    for i in 0..contacts {
+    (0..contacts).map(move |i| {
         let a = (rng.next() % stations as u64) as usize;
         let b = (a + 1 + (rng.next() % (stations as u64 - 1)) as usize) % stations;
         let (band, hz) = bands[(rng.next() % 3) as usize];
         let outcome =
             [Outcome::Worked, Outcome::Partial, Outcome::NoContact][(rng.next() % 3) as usize];
-        let c = Contact::new(ContactParts {
+        Contact::new(ContactParts {
             id: ContactId(Uuid::from_u64_pair(contacts, i)),
             drill: None,
             own: StationSnapshot {
@@ -95,7 +95,15 @@ pub fn build(path: &std::path::Path, contacts: u64, stations: usize) -> Logbook 
             note: String::new(),
             origin: Origin::LoggedHere,
         })
-        .unwrap();
+        .unwrap()
+    })
+}
+
+/// A logbook at `path` holding [`generated`] contacts, written in batches of 100,000.
+pub fn build(path: &std::path::Path, contacts: u64, stations: usize) -> Logbook {
+    let mut book = Logbook::open(path).unwrap();
+    let mut batch = Vec::with_capacity(100_000);
+    for c in generated(contacts, stations) {
         batch.push(c);
         if batch.len() == 100_000 {
             book.add_contacts(&batch).unwrap();

@@ -99,3 +99,24 @@ fn split_csv(line: &str) -> Vec<String> {
     out.push(cur);
     out
 }
+
+/// Runs the nearsky binary with arguments and extra environment variables: (exit code,
+/// stdout, stderr).
+pub fn nearsky_env(args: &[&str], envs: &[(&str, &str)]) -> (i32, String, String) {
+    let mut c = std::process::Command::new(env!("CARGO_BIN_EXE_nearsky"));
+    c.args(args);
+    for (k, v) in envs {
+        c.env(k, v);
+    }
+    let out = c.output().unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8_lossy(&out.stdout).into_owned(),
+        String::from_utf8_lossy(&out.stderr).into_owned(),
+    )
+}
+
+/// Runs the nearsky binary: (exit code, stdout, stderr).
+pub fn nearsky(args: &[&str]) -> (i32, String, String) {
+    nearsky_env(args, &[])
+}
