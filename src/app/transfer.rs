@@ -95,7 +95,7 @@ pub fn import_file(
         path: name.clone(),
         source,
     };
-    let mut src = open_source(path).map_err(io_err)?;
+    let src = open_source(path).map_err(io_err)?;
     let mut places: HashMap<Callsign, Locator> = HashMap::new();
     for e in book.roster()? {
         if let Some(l) = e.locator {
@@ -107,6 +107,86 @@ pub fn import_file(
     {
         places.entry(p.call).or_insert(l);
     }
+    let file_name = path
+        .file_name()
+        .map_or(name.clone(), |f| f.to_string_lossy().into_owned());
+    let mut report = ImportReport {
+        file: name.clone(),
+        ..ImportReport::default()
+    };
+    let mut import = book.begin_import()?;
+    if let Some(d) = &opts.drill {
+        import.drill(d)?;
+    }
+    // Reading and checking run on a second thread and hand over checked records in batches
+    // through a bounded channel (memory stays bounded); this thread stores them. The two
+    // halves take similar time, so on two cores they overlap.
+    let (send, receive) = std::sync::mpsc::sync_channel::<Vec<Parsed>>(4);
+    let stored = std::thread::scope(|scope| -> Result<bool, TransferError> {
+        let reader = scope.spawn(move || read_and_check(src, places, opts, &file_name, send));
+        let store = || -> Result<(), TransferError> {
+            for batch in receive {
+                for item in batch {
+                    report.read += 1;
+                    match item {
+                        Parsed::Rejected(e) => report.rejected.push(e),
+                        Parsed::Contact(c, warnings) => {
+                            report.warnings.extend(warnings);
+                            if import.add(&c)? {
+                                report.imported += 1;
+                            } else {
+                                report.duplicates += 1;
+                            }
+                        }
+                    }
+                    if report.read.is_multiple_of(5000) {
+                        progress(report.read);
+                    }
+                }
+            }
+            Ok(())
+        };
+        // A store error drops the receiver, which stops the reader at its next batch.
+        let stored = store();
+        let header_warnings = match reader.join() {
+            Ok(r) => r.map_err(io_err)?,
+            Err(_) => {
+                return Err(TransferError::Io {
+                    path: name.clone(),
+                    source: io::Error::other("the reading thread failed"),
+                });
+            }
+        };
+        stored?;
+        report.warnings.extend(header_warnings);
+        let refuse = !report.rejected.is_empty() && !opts.skip_bad;
+        Ok(!(opts.dry_run || refuse))
+    })?;
+    if stored {
+        import.commit()?;
+        report.stored = true;
+    }
+    Ok(report)
+}
+
+/// A record as the reading thread hands it over.
+enum Parsed {
+    Contact(Box<crate::domain::Contact>, Vec<String>),
+    Rejected(RecordError),
+}
+
+/// Records per hand-over between the reading and the storing thread.
+const BATCH: usize = 256;
+
+/// Reads every record of `src`, checks it with the core types and sends the results in
+/// batches; returns the header's warnings. Stops early when the receiver is gone.
+fn read_and_check<R: BufRead>(
+    mut src: Source<R>,
+    places: HashMap<Callsign, Locator>,
+    opts: &ImportOptions,
+    file_name: &str,
+    send: std::sync::mpsc::SyncSender<Vec<Parsed>>,
+) -> io::Result<Vec<String>> {
     let lookup = |c: &Callsign| {
         places.get(c).copied().or_else(|| {
             places
@@ -115,71 +195,39 @@ pub fn import_file(
                 .map(|(_, l)| *l)
         })
     };
-    let file_name = path
-        .file_name()
-        .map_or(name.clone(), |f| f.to_string_lossy().into_owned());
     let ctx = ImportContext {
         station: opts.station.as_ref(),
         drill: opts.drill.as_deref(),
-        file: &file_name,
+        file: file_name,
         station_locator: &lookup,
     };
-    let mut report = ImportReport {
-        file: name.clone(),
-        ..ImportReport::default()
-    };
-    let import = book.begin_import()?;
-    if let Some(d) = &opts.drill {
-        import.ensure_drill(d)?;
-    }
     let mut rec = RawRecord::default();
-    let mut drills = std::collections::HashSet::new();
+    let mut batch = Vec::with_capacity(BATCH);
     loop {
-        match src.next(&mut rec).map_err(io_err)? {
+        let item = match src.next(&mut rec)? {
             Next::End => break,
-            Next::Rejected(e) => {
-                report.read += 1;
-                report.rejected.push(e);
-            }
-            Next::Record => {
-                report.read += 1;
-                match adif::to_contact(&rec, &ctx, || ContactId(Uuid::new_v4())) {
-                    Err(e) => report.rejected.push(e),
-                    Ok(imported) => {
-                        report.warnings.extend(imported.warnings);
-                        let c = imported.contact;
-                        if let Some(d) = &c.drill
-                            && opts.drill.is_none()
-                            && !drills.contains(d)
-                        {
-                            import.ensure_drill(d)?;
-                            drills.insert(d.clone());
-                        }
-                        if import.is_known(&c)? {
-                            report.duplicates += 1;
-                        } else {
-                            import.insert(&c)?;
-                            report.imported += 1;
-                        }
-                    }
-                }
-            }
-        }
-        if report.read.is_multiple_of(5000) {
-            progress(report.read);
+            Next::Rejected(e) => Parsed::Rejected(e),
+            Next::Record => match adif::to_contact(&rec, &ctx, || ContactId(Uuid::new_v4())) {
+                Err(e) => Parsed::Rejected(e),
+                Ok(c) => Parsed::Contact(Box::new(c.contact), c.warnings),
+            },
+        };
+        batch.push(item);
+        if batch.len() == BATCH
+            && send
+                .send(std::mem::replace(&mut batch, Vec::with_capacity(BATCH)))
+                .is_err()
+        {
+            return Ok(Vec::new());
         }
     }
-    if let Source::Adi(r) = &src {
-        report.warnings.extend(r.header_warnings.iter().cloned());
+    if !batch.is_empty() {
+        let _ = send.send(batch);
     }
-    let refuse = !report.rejected.is_empty() && !opts.skip_bad;
-    if opts.dry_run || refuse {
-        drop(import);
-    } else {
-        import.commit()?;
-        report.stored = true;
-    }
-    Ok(report)
+    Ok(match &src {
+        Source::Adi(r) => r.header_warnings.clone(),
+        Source::Adx(_) => Vec::new(),
+    })
 }
 
 /// Export format.

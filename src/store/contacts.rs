@@ -99,6 +99,23 @@ macro_rules! contact_params {
     };
 }
 
+/// The contact insert, with `$tail` appended.
+macro_rules! insert_contact {
+    ($tail:literal) => {
+        concat!(
+            "INSERT INTO contact (uuid, drill_id, own_call, own_operator, own_locator,
+                own_power_w, own_antenna, call, locator, start_utc, end_utc, band, freq_hz, mode,
+                submode, rst_sent, rst_rcvd, other_power_w, outcome, via, note, origin_station,
+                origin_file, revision, deleted, logged_at)
+             VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17,
+                ?18, ?19, ?20, ?21, ?22, ?23, 1, 0, ?24)",
+            $tail
+        )
+    };
+}
+const INSERT_CONTACT: &str = insert_contact!("");
+const INSERT_CONTACT_OR_SKIP: &str = insert_contact!(" ON CONFLICT (uuid) DO NOTHING");
+
 const COLUMNS: &str = "c.uuid, d.name, c.own_call, c.own_operator, c.own_locator, c.own_power_w, \
     c.own_antenna, c.call, c.locator, c.start_utc, c.end_utc, c.band, c.freq_hz, c.mode, \
     c.submode, c.rst_sent, c.rst_rcvd, c.other_power_w, c.outcome, c.via, c.note, \
@@ -256,46 +273,55 @@ fn read_row_with(
 pub struct Import<'a> {
     tx: rusqlite::Transaction<'a>,
     now: DateTime<Utc>,
+    /// Row ids of the drills seen so far in this import, by name.
+    drills: HashMap<String, i64>,
 }
 
 impl Import<'_> {
-    /// Whether the logbook (or this import so far) already holds the contact: the same UUID,
-    /// or the same logging station, other call, band and mode within a minute.
-    pub fn is_known(&self, c: &Contact) -> Result<bool> {
-        let mut by_id = self
-            .tx
-            .prepare_cached("SELECT 1 FROM contact WHERE uuid = ?1")?;
-        if by_id.exists([c.id.to_string()])? {
-            return Ok(true);
-        }
-        let mut by_key = self.tx.prepare_cached(
-            "SELECT 1 FROM contact WHERE call = ?1 AND band = ?2 AND mode = ?3
-               AND start_utc BETWEEN ?4 AND ?5 AND own_call = ?6 AND deleted = 0",
-        )?;
+    /// Stores the contact unless the logbook (or this import so far) already holds it: the
+    /// same UUID, or the same logging station, other call, band and mode within a minute.
+    /// Returns whether it was stored. The contact's drill is created if missing.
+    pub fn add(&mut self, c: &Contact) -> Result<bool> {
         let t = ts(c.start);
-        Ok(by_key.exists(params![
-            c.call.as_str(),
-            c.band.name(),
-            c.mode.mode(),
-            t - 60,
-            t + 60,
-            c.own.call.as_str()
-        ])?)
+        let known = self
+            .tx
+            .prepare_cached(
+                "SELECT 1 FROM contact WHERE call = ?1 AND band = ?2 AND mode = ?3
+                   AND start_utc BETWEEN ?4 AND ?5 AND own_call = ?6 AND deleted = 0",
+            )?
+            .exists(params![
+                c.call.as_str(),
+                c.band.name(),
+                c.mode.mode(),
+                t - 60,
+                t + 60,
+                c.own.call.as_str()
+            ])?;
+        if known {
+            return Ok(false);
+        }
+        let drill = match c.drill.as_deref() {
+            None => None,
+            Some(d) => Some(self.drill(d)?),
+        };
+        // The same UUID makes the insert a no-op: one statement instead of a look-up first.
+        Logbook::insert_row(&self.tx, c, drill, self.now, true)
     }
 
-    /// Creates the drill if the logbook does not have it yet.
-    pub fn ensure_drill(&self, name: &str) -> Result<()> {
+    /// The row id of a drill, created if the logbook does not have it yet.
+    pub fn drill(&mut self, name: &str) -> Result<i64> {
+        if let Some(id) = self.drills.get(name) {
+            return Ok(*id);
+        }
         self.tx
             .prepare_cached(
                 "INSERT INTO drill (name, description, created_at) SELECT ?1, 'created by an import', ?2
                  WHERE NOT EXISTS (SELECT 1 FROM drill WHERE name = ?1)",
             )?
             .execute(params![name, ts(self.now)])?;
-        Ok(())
-    }
-
-    pub fn insert(&self, c: &Contact) -> Result<()> {
-        Logbook::insert(&self.tx, c, self.now)
+        let id = Logbook::named_drill_id(&self.tx, name)?;
+        self.drills.insert(name.to_string(), id);
+        Ok(id)
     }
 
     /// Stores everything inserted; dropping the import instead stores nothing.
@@ -409,21 +435,32 @@ impl Logbook {
         logged_at: DateTime<Utc>,
     ) -> Result<()> {
         let drill = Self::drill_id(tx, c.drill.as_deref())?;
+        Self::insert_row(tx, c, drill, logged_at, false).map(|_| ())
+    }
+
+    /// Inserts one contact row. With `skip_same_uuid` a contact whose UUID is already stored
+    /// is left alone (returns false); without, it is an error.
+    fn insert_row(
+        tx: &rusqlite::Connection,
+        c: &Contact,
+        drill: Option<i64>,
+        logged_at: DateTime<Utc>,
+        skip_same_uuid: bool,
+    ) -> Result<bool> {
         let (origin_station, origin_file) = match &c.origin {
             Origin::LoggedHere => (None, None),
             Origin::Imported { station, file } => (Some(station.as_str()), Some(file.as_str())),
         };
-        let mut stmt = tx.prepare_cached(
-            "INSERT INTO contact (uuid, drill_id, own_call, own_operator, own_locator, own_power_w,
-                own_antenna, call, locator, start_utc, end_utc, band, freq_hz, mode, submode,
-                rst_sent, rst_rcvd, other_power_w, outcome, via, note, origin_station, origin_file,
-                revision, deleted, logged_at)
-             VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, ?13, ?14, ?15, ?16, ?17,
-                ?18, ?19, ?20, ?21, ?22, ?23, 1, 0, ?24)",
-        )?;
+        let mut stmt = tx.prepare_cached(if skip_same_uuid {
+            INSERT_CONTACT_OR_SKIP
+        } else {
+            INSERT_CONTACT
+        })?;
+        let mut uuid = Uuid::encode_buffer();
+        let uuid = c.id.0.hyphenated().encode_lower(&mut uuid);
         let r = stmt.execute(contact_params!(
             c,
-            [c.id.to_string(), drill],
+            [&*uuid, drill],
             [origin_station, origin_file, ts(logged_at)]
         ));
         match r {
@@ -433,7 +470,7 @@ impl Logbook {
                     c.id
                 )))
             }
-            other => other.map(|_| ()).map_err(StoreError::from),
+            other => other.map(|n| n > 0).map_err(StoreError::from),
         }
     }
 
@@ -564,6 +601,7 @@ impl Logbook {
                 .conn
                 .transaction_with_behavior(TransactionBehavior::Immediate)?,
             now: chrono::Utc::now(),
+            drills: HashMap::new(),
         })
     }
 

@@ -276,22 +276,107 @@ pub struct Imported {
     pub warnings: Vec<String>,
 }
 
+/// The number written by ASCII digits (at most 9 of them), or None.
+fn digits(b: &[u8]) -> Option<u32> {
+    b.iter().try_fold(0u32, |n, d| {
+        d.is_ascii_digit().then(|| n * 10 + u32::from(d - b'0'))
+    })
+}
+
 fn parse_date(v: &str) -> Option<NaiveDate> {
-    if v.len() != 8 || !v.bytes().all(|b| b.is_ascii_digit()) {
+    let b = v.as_bytes();
+    if b.len() != 8 {
         return None;
     }
-    let d = NaiveDate::parse_from_str(v, "%Y%m%d").ok()?;
+    let d = NaiveDate::from_ymd_opt(
+        i32::try_from(digits(&b[..4])?).ok()?,
+        digits(&b[4..6])?,
+        digits(&b[6..])?,
+    )?;
     (d >= NaiveDate::from_ymd_opt(1930, 1, 1)?).then_some(d)
 }
 
 fn parse_time(v: &str) -> Option<NaiveTime> {
-    if !v.bytes().all(|b| b.is_ascii_digit()) {
-        return None;
+    let b = v.as_bytes();
+    let (h, m) = (digits(b.get(..2)?)?, digits(b.get(2..4)?)?);
+    let s = match b.len() {
+        4 => 0,
+        6 => digits(&b[4..])?,
+        _ => return None,
+    };
+    // A leap second (60) is not a UTC time chrono builds from parts; it is refused as before.
+    NaiveTime::from_hms_opt(h, m, s)
+}
+
+/// The field names [`to_contact`] reads, so that one pass over a record finds them all.
+macro_rules! known_fields {
+    ($($name:ident),* $(,)?) => {
+        #[allow(non_camel_case_types, clippy::upper_case_acronyms)]
+        #[derive(Clone, Copy)]
+        enum K {
+            $($name),*
+        }
+        const KNOWN: &[&str] = &[$(stringify!($name)),*];
+    };
+}
+known_fields!(
+    CALL,
+    QSO_DATE,
+    TIME_ON,
+    TIME_OFF,
+    QSO_DATE_OFF,
+    FREQ,
+    BAND,
+    MODE,
+    SUBMODE,
+    RST_SENT,
+    RST_RCVD,
+    TX_PWR,
+    RX_PWR,
+    GRIDSQUARE,
+    GRIDSQUARE_EXT,
+    MY_GRIDSQUARE,
+    MY_GRIDSQUARE_EXT,
+    STATION_CALLSIGN,
+    OPERATOR,
+    GUEST_OP,
+    APP_NEARSKY_OUTCOME,
+    QSO_COMPLETE,
+    APP_NEARSKY_UUID,
+    APP_NEARSKY_VIA,
+    APP_NEARSKY_DRILL,
+    NOTES_INTL,
+    NOTES,
+    COMMENT_INTL,
+    COMMENT,
+    MY_ANTENNA_INTL,
+    MY_ANTENNA,
+);
+
+/// The known fields of one record, with their lines.
+struct Known<'r>([Option<(&'r str, u32)>; KNOWN.len()]);
+
+impl<'r> Known<'r> {
+    fn of(rec: &'r RawRecord) -> Self {
+        let mut slots = [None; KNOWN.len()];
+        for (name, value, line) in rec.fields() {
+            // Lengths first: most names are told apart without comparing their text.
+            if let Some(i) = KNOWN
+                .iter()
+                .position(|k| k.len() == name.len() && *k == name)
+            {
+                slots[i] = Some((value, line));
+            }
+        }
+        Self(slots)
     }
-    match v.len() {
-        4 => NaiveTime::parse_from_str(v, "%H%M").ok(),
-        6 => NaiveTime::parse_from_str(v, "%H%M%S").ok(),
-        _ => None,
+
+    fn at(&self, k: K) -> Option<(&'r str, u32)> {
+        self.0[k as usize]
+    }
+
+    fn get(&self, k: K) -> Option<&'r str> {
+        self.at(k).map(|(v, _)| v)
     }
 }
 
@@ -304,55 +389,56 @@ pub fn to_contact(
 ) -> Result<Imported, RecordError> {
     let mut warnings = rec.warnings.clone();
     let line = rec.line;
-    let at = |name: &str| rec.get_with_line(name);
-    let bad = |name: &str, e: &dyn fmt::Display| {
-        let (v, l) = at(name).unwrap_or(("", line));
-        RecordError::field(l, name, v, e.to_string())
+    let known = Known::of(rec);
+    let at = |k: K| known.at(k);
+    let bad = |k: K, e: &dyn fmt::Display| {
+        let (v, l) = at(k).unwrap_or(("", line));
+        RecordError::field(l, KNOWN[k as usize], v, e.to_string())
     };
-    let required = |name: &str| {
-        at(name)
-            .map(|(v, _)| v)
-            .ok_or_else(|| RecordError::record(line, &format!("field {name} is missing")))
+    let required = |k: K| {
+        known.get(k).ok_or_else(|| {
+            RecordError::record(line, &format!("field {} is missing", KNOWN[k as usize]))
+        })
     };
 
-    let call = Callsign::parse(required("CALL")?).map_err(|e| bad("CALL", &e))?;
-    let date = parse_date(required("QSO_DATE")?)
-        .ok_or_else(|| bad("QSO_DATE", &"not a date YYYYMMDD from 1930 on"))?;
-    let time_on = parse_time(required("TIME_ON")?)
-        .ok_or_else(|| bad("TIME_ON", &"not a UTC time HHMM or HHMMSS"))?;
+    let call = Callsign::parse(required(K::CALL)?).map_err(|e| bad(K::CALL, &e))?;
+    let date = parse_date(required(K::QSO_DATE)?)
+        .ok_or_else(|| bad(K::QSO_DATE, &"not a date YYYYMMDD from 1930 on"))?;
+    let time_on = parse_time(required(K::TIME_ON)?)
+        .ok_or_else(|| bad(K::TIME_ON, &"not a UTC time HHMM or HHMMSS"))?;
     let start = date.and_time(time_on).and_utc();
-    let end = match at("TIME_OFF") {
+    let end = match at(K::TIME_OFF) {
         None => None,
         Some((v, _)) => {
             let t =
-                parse_time(v).ok_or_else(|| bad("TIME_OFF", &"not a UTC time HHMM or HHMMSS"))?;
-            let d = match at("QSO_DATE_OFF") {
+                parse_time(v).ok_or_else(|| bad(K::TIME_OFF, &"not a UTC time HHMM or HHMMSS"))?;
+            let d = match at(K::QSO_DATE_OFF) {
                 Some((dv, _)) => parse_date(dv)
-                    .ok_or_else(|| bad("QSO_DATE_OFF", &"not a date YYYYMMDD from 1930 on"))?,
+                    .ok_or_else(|| bad(K::QSO_DATE_OFF, &"not a date YYYYMMDD from 1930 on"))?,
                 None => date,
             };
             let mut e: DateTime<Utc> = d.and_time(t).and_utc();
             // Without QSO_DATE_OFF an end before the start means the next day (ADIF TIME_OFF).
-            if at("QSO_DATE_OFF").is_none() && e < start {
+            if at(K::QSO_DATE_OFF).is_none() && e < start {
                 e += Duration::days(1);
             }
             Some(e)
         }
     };
-    let frequency = at("FREQ")
-        .map(|(v, _)| Frequency::parse(v).map_err(|e| bad("FREQ", &e)))
+    let frequency = at(K::FREQ)
+        .map(|(v, _)| Frequency::parse(v).map_err(|e| bad(K::FREQ, &e)))
         .transpose()?;
-    let band_field = at("BAND")
-        .map(|(v, _)| Band::parse(v).map_err(|e| bad("BAND", &e)))
+    let band_field = at(K::BAND)
+        .map(|(v, _)| Band::parse(v).map_err(|e| bad(K::BAND, &e)))
         .transpose()?;
     let band = match (frequency, band_field) {
         (Some(f), b) => {
-            let derived = Band::containing(f).map_err(|e| bad("FREQ", &e))?;
+            let derived = Band::containing(f).map_err(|e| bad(K::FREQ, &e))?;
             if let Some(b) = b
                 && b != derived
             {
                 return Err(bad(
-                    "BAND",
+                    K::BAND,
                     &format!(
                         "disagrees with FREQ {f}, which is in the {derived} band; not changed, fix one of them"
                     ),
@@ -363,51 +449,57 @@ pub fn to_contact(
         (None, Some(b)) => b,
         (None, None) => return Err(RecordError::record(line, "neither BAND nor FREQ is given")),
     };
-    let mode_text = required("MODE")?;
-    let mode = Mode::new(mode_text, rec.get("SUBMODE")).map_err(|e| bad("MODE", &e))?;
-    let report = |name: &str| {
-        rec.get(name)
-            .map(|v| Report::parse(v).map_err(|e| bad(name, &e)))
+    let mode_text = required(K::MODE)?;
+    let mode = Mode::new(mode_text, known.get(K::SUBMODE)).map_err(|e| bad(K::MODE, &e))?;
+    let report = |k: K| {
+        known
+            .get(k)
+            .map(|v| Report::parse(v).map_err(|e| bad(k, &e)))
             .transpose()
     };
-    let sent = report("RST_SENT")?;
-    let rcvd = report("RST_RCVD")?;
-    let power = |name: &str| {
-        rec.get(name)
+    let sent = report(K::RST_SENT)?;
+    let rcvd = report(K::RST_RCVD)?;
+    let power = |k: K| {
+        known
+            .get(k)
             .map(|v| {
                 v.trim()
                     .parse::<f64>()
-                    .map_err(|_| bad(name, &"not a number of watts"))
-                    .and_then(|w| Power::from_watts(w).map_err(|e| bad(name, &e)))
+                    .map_err(|_| bad(k, &"not a number of watts"))
+                    .and_then(|w| Power::from_watts(w).map_err(|e| bad(k, &e)))
             })
             .transpose()
     };
-    let own_power = power("TX_PWR")?;
-    let other_power = power("RX_PWR")?;
-    let locator = |base: &str, ext: &str| -> Result<Option<Locator>, RecordError> {
-        let Some(g) = rec.get(base) else {
+    let own_power = power(K::TX_PWR)?;
+    let other_power = power(K::RX_PWR)?;
+    let locator = |base: K, ext: K| -> Result<Option<Locator>, RecordError> {
+        let Some(g) = known.get(base) else {
             return Ok(None);
         };
-        let mut text = g.trim().to_string();
-        if let Some(e) = rec.get(ext)
-            && text.len() == 8
-        {
-            // Characters 9–10; anything after the 4th character of the extension is ignored.
-            text.push_str(&e.trim().chars().take(2).collect::<String>());
-        }
-        Locator::parse(&text).map(Some).map_err(|e| bad(base, &e))
+        let g = g.trim();
+        let parsed = match known.get(ext) {
+            Some(e) if g.len() == 8 => {
+                // Characters 9–10; anything after the 4th character of the extension is
+                // ignored.
+                let mut text = g.to_string();
+                text.extend(e.trim().chars().take(2));
+                Locator::parse(&text)
+            }
+            _ => Locator::parse(g),
+        };
+        parsed.map(Some).map_err(|e| bad(base, &e))
     };
-    let other_locator = locator("GRIDSQUARE", "GRIDSQUARE_EXT")?;
-    let mut own_locator = locator("MY_GRIDSQUARE", "MY_GRIDSQUARE_EXT")?;
-    if rec.get("GRIDSQUARE").is_some_and(|g| g.trim().len() > 8) {
+    let other_locator = locator(K::GRIDSQUARE, K::GRIDSQUARE_EXT)?;
+    let mut own_locator = locator(K::MY_GRIDSQUARE, K::MY_GRIDSQUARE_EXT)?;
+    if known.get(K::GRIDSQUARE).is_some_and(|g| g.trim().len() > 8) {
         warnings.push(format!(
             "line {line}: GRIDSQUARE holds more than 8 characters; read as locator and extension"
         ));
     }
-    let station_field = rec
-        .get("STATION_CALLSIGN")
-        .map(|v| ("STATION_CALLSIGN", v))
-        .or_else(|| rec.get("OPERATOR").map(|v| ("OPERATOR", v)));
+    let station_field = known
+        .get(K::STATION_CALLSIGN)
+        .map(|v| (K::STATION_CALLSIGN, v))
+        .or_else(|| known.get(K::OPERATOR).map(|v| (K::OPERATOR, v)));
     let own_call = match (station_field, ctx.station) {
         (Some((name, v)), _) => Callsign::parse(v).map_err(|e| bad(name, &e))?,
         (None, Some(s)) => s.clone(),
@@ -418,9 +510,9 @@ pub fn to_contact(
             ));
         }
     };
-    let operator = match rec.get("OPERATOR").or_else(|| rec.get("GUEST_OP")) {
+    let operator = match known.get(K::OPERATOR).or_else(|| known.get(K::GUEST_OP)) {
         Some(v) => {
-            let o = Callsign::parse(v).map_err(|e| bad("OPERATOR", &e))?;
+            let o = Callsign::parse(v).map_err(|e| bad(K::OPERATOR, &e))?;
             (o != own_call).then_some(o)
         }
         None => None,
@@ -428,10 +520,10 @@ pub fn to_contact(
     if own_locator.is_none() {
         own_locator = (ctx.station_locator)(&own_call);
     }
-    let outcome = match rec.get("APP_NEARSKY_OUTCOME") {
-        Some(v) => Outcome::parse(v).map_err(|e| bad("APP_NEARSKY_OUTCOME", &e))?,
-        None => match rec
-            .get("QSO_COMPLETE")
+    let outcome = match known.get(K::APP_NEARSKY_OUTCOME) {
+        Some(v) => Outcome::parse(v).map_err(|e| bad(K::APP_NEARSKY_OUTCOME, &e))?,
+        None => match known
+            .get(K::QSO_COMPLETE)
             .map(|v| v.trim().to_ascii_uppercase())
         {
             None => Outcome::Worked,
@@ -439,34 +531,34 @@ pub fn to_contact(
                 "Y" => Outcome::Worked,
                 "N" | "?" => Outcome::Partial,
                 "NIL" => Outcome::NoContact,
-                _ => return Err(bad("QSO_COMPLETE", &"not Y, N, NIL or ?")),
+                _ => return Err(bad(K::QSO_COMPLETE, &"not Y, N, NIL or ?")),
             },
         },
     };
-    let id = match rec.get("APP_NEARSKY_UUID") {
+    let id = match known.get(K::APP_NEARSKY_UUID) {
         Some(v) => {
-            ContactId(uuid::Uuid::parse_str(v.trim()).map_err(|e| bad("APP_NEARSKY_UUID", &e))?)
+            ContactId(uuid::Uuid::parse_str(v.trim()).map_err(|e| bad(K::APP_NEARSKY_UUID, &e))?)
         }
         None => new_id(),
     };
-    let via = rec
-        .get("APP_NEARSKY_VIA")
-        .map(|v| Callsign::parse(v).map_err(|e| bad("APP_NEARSKY_VIA", &e)))
+    let via = known
+        .get(K::APP_NEARSKY_VIA)
+        .map(|v| Callsign::parse(v).map_err(|e| bad(K::APP_NEARSKY_VIA, &e)))
         .transpose()?;
     let drill = ctx
         .drill
         .map(str::to_string)
-        .or_else(|| rec.get("APP_NEARSKY_DRILL").map(str::to_string));
-    let note = rec
-        .get("NOTES_INTL")
-        .or_else(|| rec.get("NOTES"))
-        .or_else(|| rec.get("COMMENT_INTL"))
-        .or_else(|| rec.get("COMMENT"))
+        .or_else(|| known.get(K::APP_NEARSKY_DRILL).map(str::to_string));
+    let note = known
+        .get(K::NOTES_INTL)
+        .or_else(|| known.get(K::NOTES))
+        .or_else(|| known.get(K::COMMENT_INTL))
+        .or_else(|| known.get(K::COMMENT))
         .unwrap_or("")
         .replace("\r\n", "\n");
-    let antenna = rec
-        .get("MY_ANTENNA_INTL")
-        .or_else(|| rec.get("MY_ANTENNA"))
+    let antenna = known
+        .get(K::MY_ANTENNA_INTL)
+        .or_else(|| known.get(K::MY_ANTENNA))
         .map(str::to_string);
     let parts = ContactParts {
         id,
@@ -514,6 +606,30 @@ mod tests {
     fn ascii_text_folds_accents_and_line_breaks() {
         assert_eq!(ascii_text("José\nÅsa ∑", true), "Jose\r\nAsa ?");
         assert_eq!(ascii_text("a\tb\x1bc", false), "a b c");
+    }
+
+    #[test]
+    fn dates_and_times_are_read_as_the_standard_writes_them() {
+        // ADIF 3.1.7 Date: YYYYMMDD, from 1930-01-01; Time: HHMM or HHMMSS, UTC.
+        assert_eq!(parse_date("20251004"), NaiveDate::from_ymd_opt(2025, 10, 4));
+        assert_eq!(parse_date("19300101"), NaiveDate::from_ymd_opt(1930, 1, 1));
+        for bad in [
+            "19291231",
+            "20250230",
+            "2025104",
+            "2025-10-4",
+            "２０２５１００４",
+            "",
+        ] {
+            assert_eq!(parse_date(bad), None, "{bad}");
+        }
+        assert_eq!(parse_time("0959"), NaiveTime::from_hms_opt(9, 59, 0));
+        assert_eq!(parse_time("235959"), NaiveTime::from_hms_opt(23, 59, 59));
+        for bad in [
+            "2400", "0960", "123", "12345", "1234567", "12:34", "+123", "",
+        ] {
+            assert_eq!(parse_time(bad), None, "{bad}");
+        }
     }
 
     #[test]
