@@ -1,5 +1,6 @@
 //! Profiling aid: coverage + plan of 1,000,000 in-memory contacts among 200 stations, with the
-//! time of each stage. Run: `cargo bench --bench covprof`.
+//! time of each stage. Run: `cargo bench --bench covprof`; `NEARSKY_COVPROF=10000,200` sets
+//! the contacts and stations.
 
 #[path = "common/mod.rs"]
 mod common;
@@ -10,7 +11,13 @@ use nearsky::domain::coverage::{CoverageBuilder, CoverageConfig};
 use nearsky::domain::plan::{PlanConfig, make_plan};
 
 fn main() {
-    let contacts: Vec<_> = common::generated(1_000_000, 200).collect();
+    let size = std::env::var("NEARSKY_COVPROF").unwrap_or_default();
+    let mut size = size.split(',').map(|x| x.trim().parse::<u64>().ok());
+    let (n, stations) = (
+        size.next().flatten().unwrap_or(1_000_000),
+        size.next().flatten().unwrap_or(200),
+    );
+    let contacts: Vec<_> = common::generated(n, stations as usize).collect();
     let t = Instant::now();
     let mut b = CoverageBuilder::new(CoverageConfig::default()).unwrap();
     for c in &contacts {

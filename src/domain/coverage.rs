@@ -781,13 +781,16 @@ impl CoverageBuilder {
         let mut bands: Vec<Band> = self.cells.keys().map(|k| k.1).collect();
         bands.sort();
         bands.dedup();
-        // Links.
+        // Links: the cells in link, band and bin order; a link's row is made at its first cell.
+        let mut cells: Vec<_> = std::mem::take(&mut self.cells).into_iter().collect();
+        cells.sort_unstable_by_key(|(k, _)| (k.0, k.1, k.2));
         let mut links: Vec<LinkRow> = Vec::new();
-        let mut link_index: HashMap<(u32, u32), usize> = HashMap::new();
-        let mut keys: Vec<_> = self.cells.keys().copied().collect();
-        keys.sort_by_key(|k| (k.0, k.1, k.2));
-        for (link, band, bin) in keys {
-            let i = *link_index.entry(link).or_insert_with(|| {
+        // Distance of each cell's link, for the band × hour pass below.
+        let mut cell_distance: Vec<Option<f64>> = Vec::with_capacity(cells.len());
+        let mut last_link = None;
+        for &((link, band, bin), ref cell) in &cells {
+            if last_link != Some(link) {
+                last_link = Some(link);
                 let (la, lb) = self.link_geo.get(&link).copied().unwrap_or_default();
                 let la = la.or(self.stations.locators[link.0 as usize]);
                 let lb = lb.or(self.stations.locators[link.1 as usize]);
@@ -807,18 +810,14 @@ impl CoverageBuilder {
                     bearing_deg: brg,
                     cells: BTreeMap::new(),
                 });
-                links.len() - 1
-            });
-            let row = links[i]
-                .cells
-                .entry(band)
-                .or_insert_with(|| vec![None; bins]);
-            row[bin] = self.cells.get(&(link, band, bin)).cloned();
+            }
+            let Some(row) = links.last_mut() else {
+                continue;
+            };
+            cell_distance.push(row.distance_km);
+            let row = row.cells.entry(band).or_insert_with(|| vec![None; bins]);
+            row[bin] = Some(cell.clone());
         }
-        let distance_of: HashMap<(u32, u32), Option<f64>> = link_index
-            .iter()
-            .map(|(k, i)| (*k, links[*i].distance_km))
-            .collect();
         // Band × hour and rings, in one pass over the cells.
         let labels = cfg.ring_labels();
         struct Acc {
@@ -827,7 +826,7 @@ impl CoverageBuilder {
             rings: Vec<(u32, u32)>,
         }
         let mut acc: BTreeMap<(Band, usize), Acc> = BTreeMap::new();
-        for (key, cell) in &self.cells {
+        for ((key, cell), distance) in cells.iter().zip(&cell_distance) {
             let (band, bin) = (key.1, key.2);
             let a = acc.entry((band, bin)).or_insert_with(|| Acc {
                 h: BandHour {
@@ -850,7 +849,7 @@ impl CoverageBuilder {
             a.h.worked += cell.worked;
             a.h.partial += cell.partial;
             a.h.none += cell.none;
-            if let Some(Some(d)) = distance_of.get(&key.0) {
+            if let Some(d) = distance {
                 if cell.worked > 0 {
                     a.dists.push((*d, u64::from(cell.worked)));
                 }

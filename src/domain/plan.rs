@@ -133,30 +133,82 @@ fn rank_bands(c: &Coverage, bin: usize, min_attempts: u32) -> Vec<Ranked> {
     r
 }
 
-/// Strength of each link in a bin as a dense matrix over the stations: its best band's lower
-/// Wilson limit, for links that worked; negative where there is none.
-fn link_strengths(c: &Coverage, bin: usize, active: &[usize]) -> Vec<f64> {
-    let n = c.stations.len();
-    let mut m = vec![-1.0; n * n];
-    for l in active.iter().map(|i| &c.links[*i]) {
-        let best = l
-            .cells
-            .values()
-            .filter_map(|row| row.get(bin).and_then(Option::as_ref))
-            .filter(|cell| cell.worked > 0)
-            .filter_map(|cell| {
-                wilson(u64::from(cell.worked), u64::from(cell.attempts), Z95).map(|w| w.0)
-            })
-            .reduce(f64::max);
-        if let Some(s) = best {
+/// The links that worked in one bin: each link's strength (its best band's lower Wilson
+/// limit) as a dense matrix over the stations, negative where none worked, and for each
+/// station the set of stations it worked, as bits.
+struct Worked {
+    n: usize,
+    strength: Vec<f64>,
+    words: usize,
+    bits: Vec<u64>,
+    /// The links filled in, to clear them for the next bin.
+    set: Vec<(usize, usize)>,
+}
+
+impl Worked {
+    fn new(n: usize) -> Self {
+        let words = n.div_ceil(64);
+        Self {
+            n,
+            strength: vec![-1.0; n * n],
+            words,
+            bits: vec![0; n * words],
+            set: Vec::new(),
+        }
+    }
+
+    /// Fills in the links of one bin (after clearing what the previous bin left).
+    fn fill(&mut self, c: &Coverage, bin: usize, active: &[usize]) {
+        let (n, words) = (self.n, self.words);
+        for (a, b) in std::mem::take(&mut self.set) {
+            self.strength[a * n + b] = -1.0;
+            self.strength[b * n + a] = -1.0;
+            self.bits[a * words + b / 64] = 0;
+            self.bits[b * words + a / 64] = 0;
+        }
+        for l in active.iter().map(|i| &c.links[*i]) {
+            let best = l
+                .cells
+                .values()
+                .filter_map(|row| row.get(bin).and_then(Option::as_ref))
+                .filter(|cell| cell.worked > 0)
+                .filter_map(|cell| {
+                    wilson(u64::from(cell.worked), u64::from(cell.attempts), Z95).map(|w| w.0)
+                })
+                .reduce(f64::max);
             let (a, b) = (l.ia as usize, l.ib as usize);
-            if a < n && b < n {
-                m[a * n + b] = s;
-                m[b * n + a] = s;
+            if let Some(s) = best
+                && a < n
+                && b < n
+            {
+                self.strength[a * n + b] = s;
+                self.strength[b * n + a] = s;
+                self.bits[a * words + b / 64] |= 1 << (b % 64);
+                self.bits[b * words + a / 64] |= 1 << (a % 64);
+                self.set.push((a, b));
             }
         }
     }
-    m
+
+    fn strength(&self, a: usize, b: usize) -> f64 {
+        self.strength[a * self.n + b]
+    }
+
+    /// Stations that worked both `a` and `b`, with the weaker of the two links.
+    fn common(&self, a: usize, b: usize, out: &mut Vec<(usize, f64)>) {
+        out.clear();
+        let (ra, rb) = (a * self.words, b * self.words);
+        for w in 0..self.words {
+            let mut both = self.bits[ra + w] & self.bits[rb + w];
+            while both != 0 {
+                let k = w * 64 + both.trailing_zeros() as usize;
+                both &= both - 1;
+                if k != a && k != b {
+                    out.push((k, self.strength(a, k).min(self.strength(b, k))));
+                }
+            }
+        }
+    }
 }
 
 fn plan_for_bin(
@@ -164,6 +216,7 @@ fn plan_for_bin(
     bin: usize,
     cfg: &PlanConfig,
     active: &[usize],
+    worked: &mut Worked,
 ) -> (PlanBin, Vec<RelayNeed>) {
     let attempts: u32 = c
         .hours
@@ -199,8 +252,8 @@ fn plan_for_bin(
     let alternate = ranked.get(1).map(|r| r.band);
     let mut relays = Vec::new();
     if let Some(band) = primary {
-        let n = c.stations.len();
-        let strength = link_strengths(c, bin, active);
+        worked.fill(c, bin, active);
+        let mut found = Vec::new();
         for l in active.iter().map(|i| &c.links[*i]) {
             let Some(Some(cell)) = l.cells.get(&band).and_then(|row| row.get(bin)) else {
                 continue;
@@ -209,21 +262,23 @@ fn plan_for_bin(
                 continue;
             }
             let (a, b) = (l.ia as usize, l.ib as usize);
-            let mut found: Vec<(usize, f64)> = (0..n)
-                .filter(|k| *k != a && *k != b)
-                .filter_map(|k| {
-                    let (x, y) = (strength[a * n + k], strength[b * n + k]);
-                    (x >= 0.0 && y >= 0.0).then_some((k, x.min(y)))
-                })
-                .collect();
-            found.sort_by(|x, y| {
+            if a >= worked.n || b >= worked.n {
+                continue;
+            }
+            worked.common(a, b, &mut found);
+            // Strongest first; equal strengths by call. Only the kept few are fully sorted.
+            let order = |x: &(usize, f64), y: &(usize, f64)| {
                 y.1.total_cmp(&x.1)
                     .then_with(|| c.stations[x.0].0.cmp(&c.stations[y.0].0))
-            });
-            found.truncate(MAX_RELAY_CANDIDATES);
+            };
+            if found.len() > MAX_RELAY_CANDIDATES {
+                found.select_nth_unstable_by(MAX_RELAY_CANDIDATES - 1, order);
+                found.truncate(MAX_RELAY_CANDIDATES);
+            }
+            found.sort_by(order);
             let candidates = found
-                .into_iter()
-                .map(|(k, st)| RelayCandidate {
+                .iter()
+                .map(|&(k, st)| RelayCandidate {
                     call: c.stations[k].0.clone(),
                     strength: st,
                 })
@@ -284,28 +339,30 @@ pub fn make_plan(c: &Coverage, cfg: &PlanConfig) -> Plan {
     // For each bin, the links tried in it: the per-bin work then follows the cells, not the
     // links times the bins.
     let mut active: Vec<Vec<usize>> = vec![Vec::new(); bins];
+    // The last link listed in each bin, so that a link with cells on several bands is listed
+    // once.
+    let mut last = vec![usize::MAX; bins];
     for (i, l) in c.links.iter().enumerate() {
-        for (b, list) in active.iter_mut().enumerate() {
-            if l.cells
-                .values()
-                .any(|row| row.get(b).is_some_and(Option::is_some))
-            {
-                list.push(i);
+        for row in l.cells.values() {
+            for (b, cell) in row.iter().enumerate().take(bins) {
+                if cell.is_some() && last[b] != i {
+                    last[b] = i;
+                    active[b].push(i);
+                }
             }
         }
     }
+    let mut worked = Worked::new(c.stations.len());
     let per_bin: Vec<(PlanBin, Vec<RelayNeed>)> = (0..bins)
-        .map(|b| plan_for_bin(c, b, cfg, &active[b]))
+        .map(|b| plan_for_bin(c, b, cfg, &active[b], &mut worked))
         .collect();
     let shift = match (cfg.for_date, c.first_date, c.centre) {
         (Some(to), Some(from), Some(centre)) if to != from => Some((to, from, centre)),
         _ => None,
     };
-    let mut out_bins = Vec::with_capacity(bins);
-    let mut relays = Vec::new();
     let bin_minutes = f64::from(c.config.bin_minutes);
-    for target in 0..bins {
-        let source = match shift {
+    let sources: Vec<usize> = (0..bins)
+        .map(|target| match shift {
             None => target,
             Some((to, from, centre)) => {
                 // Map the target bin's start, middle and end to the drill's date; of the bins
@@ -341,8 +398,27 @@ pub fn make_plan(c: &Coverage, cfg: &PlanConfig) -> Plan {
                     _ => target,
                 }
             }
+        })
+        .collect();
+    // Each source bin's result moves to its last target and is copied for the others.
+    let mut uses = vec![0usize; bins];
+    for s in &sources {
+        uses[*s] += 1;
+    }
+    let mut per_bin: Vec<Option<(PlanBin, Vec<RelayNeed>)>> =
+        per_bin.into_iter().map(Some).collect();
+    let mut out_bins = Vec::with_capacity(bins);
+    let mut relays = Vec::new();
+    for (target, &source) in sources.iter().enumerate() {
+        uses[source] -= 1;
+        let taken = if uses[source] == 0 {
+            per_bin[source].take()
+        } else {
+            per_bin[source].clone()
         };
-        let (mut pb, needs) = per_bin[source].clone();
+        let Some((mut pb, needs)) = taken else {
+            continue;
+        };
         let target_start = c.config.hour_start(target);
         if source != target {
             pb.note = format!(
