@@ -143,6 +143,17 @@ fn name_bit(name: &str) -> u64 {
     1 << (h % 64)
 }
 
+/// Line breaks in `b`. Usually a field's worth of bytes: a plain count then beats setting up a
+/// search.
+fn newlines(b: &[u8]) -> u32 {
+    let n = if b.len() < 64 {
+        b.iter().filter(|c| **c == b'\n').count()
+    } else {
+        memchr::memchr_iter(b'\n', b).count()
+    };
+    n as u32
+}
+
 /// What the reader found next.
 #[derive(Debug)]
 pub enum Next {
@@ -168,6 +179,8 @@ pub struct AdiReader<R: Read> {
     header: Vec<(String, String)>,
     /// Warnings about the header, available after the first record.
     pub header_warnings: Vec<String>,
+    /// Whether the quick path for common fields is used (tests compare both paths).
+    quick: bool,
 }
 
 enum Tag {
@@ -194,6 +207,7 @@ impl<R: Read> AdiReader<R> {
             header_done: false,
             header: Vec::new(),
             header_warnings: Vec::new(),
+            quick: true,
         }
     }
 
@@ -238,9 +252,95 @@ impl<R: Read> AdiReader<R> {
 
     /// The line number at `pos`.
     fn current_line(&mut self) -> u32 {
-        self.line += memchr::memchr_iter(b'\n', &self.buf[self.line_pos..self.pos]).count() as u32;
+        self.line += newlines(&self.buf[self.line_pos..self.pos]);
         self.line_pos = self.pos;
         self.line
+    }
+
+    /// Reads one field of the common kind in place: a tag `<NAME:LEN>` or `<NAME:LEN:T>` with
+    /// a name of letters, digits and `_`, a short length, and an ASCII value that is all in
+    /// the buffer, after at most a few spaces or line breaks. Returns false, having changed
+    /// nothing, for anything else, which the general path then reads (and reports on).
+    fn quick_field(&mut self, rec: &mut RawRecord) -> bool {
+        if self.line_pos != self.pos {
+            self.current_line();
+        }
+        let buf = &self.buf;
+        let mut i = self.pos;
+        let mut gap_lines = 0;
+        while i < buf.len() && i < self.pos + 4 && buf[i].is_ascii_whitespace() {
+            gap_lines += u32::from(buf[i] == b'\n');
+            i += 1;
+        }
+        let Some(w) = buf.get(i..i + MAX_TAG) else {
+            return false;
+        };
+        if w[0] != b'<' {
+            return false;
+        }
+        let Some(name_len) = w[1..]
+            .iter()
+            .position(|b| !(b.is_ascii_alphanumeric() || *b == b'_'))
+        else {
+            return false;
+        };
+        if name_len == 0 || name_len > 64 || w.get(1 + name_len) != Some(&b':') {
+            return false;
+        }
+        let d0 = 2 + name_len;
+        let Some(digits) = w[d0..].iter().position(|b| !b.is_ascii_digit()) else {
+            return false;
+        };
+        if digits == 0 || digits > 6 {
+            return false;
+        }
+        let mut k = d0 + digits;
+        if w.get(k) == Some(&b':') {
+            if !(w.get(k + 1).is_some_and(u8::is_ascii_alphabetic) && w.get(k + 2) == Some(&b'>')) {
+                return false;
+            }
+            k += 2;
+        }
+        if w.get(k) != Some(&b'>') {
+            return false;
+        }
+        let len = w[d0..d0 + digits]
+            .iter()
+            .fold(0usize, |n, d| n * 10 + usize::from(d - b'0'));
+        let v0 = i + k + 1;
+        let Some(value) = buf.get(v0..v0 + len) else {
+            return false;
+        };
+        if len > MAX_FIELD_BYTES || rec.fields.len() >= MAX_FIELDS {
+            return false;
+        }
+        // One pass: is the value ASCII, and how many line breaks does it hold.
+        let (high, value_lines) = value.iter().fold((0u8, 0u32), |(high, n), b| {
+            (high | (b & 0x80), n + u32::from(*b == b'\n'))
+        });
+        if high != 0 {
+            return false;
+        }
+        let mut upper = [0u8; 64];
+        upper[..name_len].copy_from_slice(&w[1..1 + name_len]);
+        upper[..name_len].make_ascii_uppercase();
+        let (Ok(name), Ok(value)) = (
+            std::str::from_utf8(&upper[..name_len]),
+            std::str::from_utf8(value),
+        ) else {
+            return false;
+        };
+        if rec.has(name) {
+            return false;
+        }
+        let line = self.line + gap_lines;
+        if len > 0 {
+            rec.push_upper(name, value, line);
+        }
+        self.line = line + value_lines;
+        self.pos = v0 + len;
+        self.line_pos = self.pos;
+        true
     }
 
     /// Moves to the next `<`; false at the end of the source.
@@ -336,6 +436,9 @@ impl<R: Read> AdiReader<R> {
             }
         }
         loop {
+            if self.quick && self.quick_field(rec) {
+                continue;
+            }
             if !self.seek_tag()? {
                 return Ok(self.finish(rec));
             }
@@ -599,6 +702,74 @@ mod tests {
             }
         }
         (records, rejected, warnings)
+    }
+
+    /// Everything a reader reports of a text, with the quick path on or off: records with
+    /// their fields and lines, rejections and warnings, and the header.
+    fn everything(text: &[u8], quick: bool, chunk: usize) -> Vec<String> {
+        struct Trickle<'a>(&'a [u8], usize);
+        impl Read for Trickle<'_> {
+            fn read(&mut self, out: &mut [u8]) -> io::Result<usize> {
+                let n = self.0.len().min(out.len()).min(self.1);
+                out[..n].copy_from_slice(&self.0[..n]);
+                self.0 = &self.0[n..];
+                Ok(n)
+            }
+        }
+        let mut r = AdiReader::new(Trickle(text, chunk));
+        r.quick = quick;
+        let mut rec = RawRecord::default();
+        let mut out = Vec::new();
+        loop {
+            match r.next_record(&mut rec).unwrap() {
+                Next::Record => {
+                    out.push(format!("record at line {}", rec.line));
+                    out.extend(rec.fields().map(|(n, v, l)| format!("{l}: {n}={v:?}")));
+                    out.extend(rec.warnings.iter().cloned());
+                }
+                Next::Rejected(e) => out.push(format!("rejected: {e}")),
+                Next::End => break,
+            }
+        }
+        out.push(format!("header {:?} {:?}", r.header(), r.header_warnings));
+        out
+    }
+
+    use proptest::prelude::Strategy as _;
+
+    proptest::proptest! {
+        /// The quick path reads exactly what the general path reads, whatever the text
+        /// (names in any case, type indicators, line breaks, non-ASCII, broken tags,
+        /// duplicate fields, wrong lengths) and however the source hands it over.
+        #[test]
+        fn the_quick_path_reads_what_the_general_path_reads(
+            parts in proptest::collection::vec(
+                proptest::prop_oneof![
+                    ("[A-Za-z_]{1,12}", "[ -~\n\r]{0,20}", proptest::option::of("[A-Z]"), -2i64..3)
+                        .prop_map(|(n, v, t, off)| {
+                            let len = (v.len() as i64 + off).max(0);
+                            match t {
+                                Some(t) => format!("<{n}:{len}:{t}>{v}"),
+                                None => format!("<{n}:{len}>{v}"),
+                            }
+                        }),
+                    proptest::strategy::Just("<EOR>\n".to_string()),
+                    proptest::strategy::Just("<eoh>\r\n".to_string()),
+                    proptest::strategy::Just("<CALL:5>Q3NET ".to_string()),
+                    proptest::strategy::Just("<NOTES:6>Zoë ok".to_string()),
+                    proptest::strategy::Just("<NOTES:4>Zoë ok".to_string()),
+                    "[ \n<>:a-z0-9]{0,6}",
+                ],
+                0..40,
+            ),
+            chunk in 1usize..600,
+        ) {
+            let text = parts.concat();
+            proptest::prop_assert_eq!(
+                everything(text.as_bytes(), true, chunk),
+                everything(text.as_bytes(), false, chunk)
+            );
+        }
     }
 
     #[test]
