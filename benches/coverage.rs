@@ -47,7 +47,7 @@ fn main() {
         // The pure part alone, on contacts already in memory (no SQLite, no row checks).
         let mut all = Vec::with_capacity(contacts as usize);
         book.for_each_contact(&ContactQuery::default(), |s| {
-            all.push(s.contact.clone());
+            all.push(s.contact);
             Ok(())
         })
         .unwrap();

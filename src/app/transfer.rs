@@ -11,7 +11,7 @@ use uuid::Uuid;
 use crate::domain::{Callsign, ContactId, Locator};
 use crate::formats::adif::adx::{AdxReader, AdxWriter};
 use crate::formats::adif::{self, AdiReader, ImportContext, Next, RawRecord, RecordError};
-use crate::store::{ContactQuery, Logbook, StoreError};
+use crate::store::{ContactQuery, Logbook, StoreError, StoredContact};
 
 /// How to import.
 #[derive(Debug, Clone, Default)]
@@ -241,53 +241,127 @@ pub enum ExportFormat {
 /// Writes the contacts a query selects. Without `include_attempts` only contacts that were
 /// made (worked or partial) go out: a main station log should not receive "no contact"
 /// records. Returns the number written.
+///
+/// This thread reads the logbook and writes the output; a second one turns batches of
+/// contacts into bytes (through a bounded channel, so memory stays bounded). On two cores
+/// the reading and the formatting overlap.
 pub fn export(
     book: &Logbook,
     q: &ContactQuery,
     include_attempts: bool,
     format: ExportFormat,
-    out: impl Write,
+    mut out: impl Write,
     created: DateTime<Utc>,
 ) -> Result<usize, TransferError> {
     let io_err = |source| TransferError::Io {
         path: "output".into(),
         source,
     };
-    // Every contact the query selects and the export keeps, through one writer; returns
-    // how many were written.
-    let each = |write: &mut dyn FnMut(&crate::store::StoredContact) -> io::Result<()>| -> Result<usize, TransferError> {
+    let (send, receive) = std::sync::mpsc::sync_channel::<Vec<StoredContact>>(4);
+    let (send_bytes, bytes) = std::sync::mpsc::channel::<Vec<u8>>();
+    std::thread::scope(|scope| -> Result<usize, TransferError> {
+        let formatter = scope.spawn(move || -> io::Result<()> {
+            let mut sink = Sink::new(format, created)?;
+            for batch in receive {
+                for s in &batch {
+                    sink.write(s)?;
+                }
+                if send_bytes.send(sink.take()).is_err() {
+                    return Ok(());
+                }
+            }
+            let _ = send_bytes.send(sink.finish()?);
+            Ok(())
+        });
         let mut n = 0;
-        book.for_each_contact(q, |s| {
+        let mut batch = Vec::with_capacity(EXPORT_BATCH);
+        let written = book.for_each_contact(q, |s| {
             if include_attempts || s.contact.outcome.made_contact() {
                 n += 1;
-                write(s).map_err(|e| StoreError::Invalid(format!("writing the export: {e}")))?;
+                batch.push(s);
+            }
+            if batch.len() == EXPORT_BATCH {
+                // A closed channel means the formatter failed: join() below says why.
+                let _ = send.send(std::mem::replace(
+                    &mut batch,
+                    Vec::with_capacity(EXPORT_BATCH),
+                ));
+                while let Ok(b) = bytes.try_recv() {
+                    out.write_all(&b)
+                        .map_err(|e| StoreError::Invalid(format!("writing the export: {e}")))?;
+                }
             }
             Ok(())
-        })?;
+        });
+        if !batch.is_empty() {
+            let _ = send.send(batch);
+        }
+        drop(send);
+        let mut rest = Ok(());
+        for b in bytes {
+            if rest.is_ok() {
+                rest = out.write_all(&b);
+            }
+        }
+        let formatted = formatter
+            .join()
+            .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
+        written?;
+        formatted.map_err(io_err)?;
+        rest.map_err(io_err)?;
+        out.flush().map_err(io_err)?;
         Ok(n)
-    };
-    match format {
-        ExportFormat::Adi => {
-            let mut w = adif::adi::AdiWriter::new(out, created).map_err(io_err)?;
-            let n = each(&mut |s| w.write(&s.contact))?;
-            w.finish().map_err(io_err)?;
-            Ok(n)
+    })
+}
+
+/// Contacts per hand-over to the formatting thread.
+const EXPORT_BATCH: usize = 1024;
+
+/// An export format writing into memory, emptied batch by batch.
+enum Sink {
+    Adi(adif::adi::AdiWriter<Vec<u8>>),
+    Adx(AdxWriter<Vec<u8>>),
+    Csv(Vec<u8>, crate::domain::geo::PathCache),
+}
+
+impl Sink {
+    fn new(format: ExportFormat, created: DateTime<Utc>) -> io::Result<Self> {
+        Ok(match format {
+            ExportFormat::Adi => Self::Adi(adif::adi::AdiWriter::new(Vec::new(), created)?),
+            ExportFormat::Adx => Self::Adx(AdxWriter::new(Vec::new(), created)?),
+            ExportFormat::Csv => {
+                let mut out = Vec::new();
+                crate::formats::csv::write_header(&mut out)?;
+                Self::Csv(out, crate::domain::geo::PathCache::new())
+            }
+        })
+    }
+
+    fn write(&mut self, s: &StoredContact) -> io::Result<()> {
+        match self {
+            Self::Adi(w) => w.write(&s.contact),
+            Self::Adx(w) => w.write(&s.contact),
+            Self::Csv(out, paths) => {
+                crate::formats::csv::write_row(out, &s.contact, s.deleted, paths)
+            }
         }
-        ExportFormat::Adx => {
-            let mut w = AdxWriter::new(out, created).map_err(io_err)?;
-            let n = each(&mut |s| w.write(&s.contact))?;
-            w.finish().map_err(io_err)?;
-            Ok(n)
-        }
-        ExportFormat::Csv => {
-            let mut out = out;
-            let mut paths = crate::domain::geo::PathCache::new();
-            crate::formats::csv::write_header(&mut out).map_err(io_err)?;
-            let n = each(&mut |s| {
-                crate::formats::csv::write_row(&mut out, &s.contact, s.deleted, &mut paths)
-            })?;
-            out.flush().map_err(io_err)?;
-            Ok(n)
+    }
+
+    /// The bytes written since the last call.
+    fn take(&mut self) -> Vec<u8> {
+        std::mem::take(match self {
+            Self::Adi(w) => w.get_mut(),
+            Self::Adx(w) => w.get_mut(),
+            Self::Csv(out, _) => out,
+        })
+    }
+
+    /// The last bytes, with the format's closing part.
+    fn finish(self) -> io::Result<Vec<u8>> {
+        match self {
+            Self::Adi(w) => w.finish(),
+            Self::Adx(w) => w.finish(),
+            Self::Csv(out, _) => Ok(out),
         }
     }
 }

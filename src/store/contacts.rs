@@ -479,7 +479,7 @@ impl Logbook {
     pub fn for_each_contact(
         &self,
         q: &ContactQuery,
-        mut f: impl FnMut(&StoredContact) -> Result<()>,
+        mut f: impl FnMut(StoredContact) -> Result<()>,
     ) -> Result<()> {
         let mut names = HashMap::new();
         let mut stmt = self.conn.prepare("SELECT id, name FROM drill")?;
@@ -512,7 +512,7 @@ impl Logbook {
         ])?;
         while let Some(r) = rows.next()? {
             let (c, _) = read_row_with(r, Some(&names))??;
-            f(&c)?;
+            f(c)?;
         }
         Ok(())
     }

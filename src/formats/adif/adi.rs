@@ -630,7 +630,26 @@ pub fn write_field(w: &mut impl Write, name: &str, value: &str) -> io::Result<()
     if value.is_empty() {
         return Ok(());
     }
-    write!(w, "<{name}:{}>{value} ", value.len())
+    // Written piece by piece: this runs for every field of an export, and formatting
+    // machinery would cost more than the bytes.
+    let mut digits = [0u8; 20];
+    let mut at = digits.len();
+    let mut n = value.len();
+    loop {
+        at -= 1;
+        digits[at] = b'0' + (n % 10) as u8;
+        n /= 10;
+        if n == 0 {
+            break;
+        }
+    }
+    w.write_all(b"<")?;
+    w.write_all(name.as_bytes())?;
+    w.write_all(b":")?;
+    w.write_all(&digits[at..])?;
+    w.write_all(b">")?;
+    w.write_all(value.as_bytes())?;
+    w.write_all(b" ")
 }
 
 /// Writes contacts as an ADI file: a line of text, the header, then one record per line.
@@ -667,6 +686,11 @@ impl<W: Write> AdiWriter<W> {
         self.w.write_all(b"<EOR>\n")?;
         self.count += 1;
         Ok(())
+    }
+
+    /// The output, to take what was written so far.
+    pub fn get_mut(&mut self) -> &mut W {
+        &mut self.w
     }
 
     pub fn finish(mut self) -> io::Result<W> {

@@ -321,6 +321,11 @@ impl<W: Write> AdxWriter<W> {
         Ok(())
     }
 
+    /// The output, to take what was written so far.
+    pub fn get_mut(&mut self) -> &mut W {
+        &mut self.w
+    }
+
     pub fn finish(mut self) -> io::Result<W> {
         writeln!(self.w, "  </RECORDS>")?;
         writeln!(self.w, "</ADX>")?;
