@@ -763,3 +763,54 @@ fn importing_twice_adds_nothing_and_bad_files_are_all_or_nothing() {
         }
     );
 }
+
+#[test]
+fn a_long_export_keeps_every_contact_in_time_order_in_every_format() {
+    // 2,600 contacts: more than two of the export's hand-over batches.
+    let base = fixture_contacts();
+    let many: Vec<Contact> = (0..2600u32)
+        .map(|i| {
+            let mut p = as_imported(&base[i as usize % base.len()], "many.adi");
+            p.id = ContactId(Uuid::from_u128(10_000 + u128::from(i)));
+            p.start = fixed_time() + chrono::Duration::minutes(i64::from(i));
+            p.end = None;
+            Contact::new(p).unwrap()
+        })
+        .collect();
+    let (_d, book) = logbook_with(&many);
+    let export = |format| {
+        let mut out = Vec::new();
+        let n = transfer::export(
+            &book,
+            &ContactQuery::default(),
+            true,
+            format,
+            &mut out,
+            fixed_time(),
+        )
+        .unwrap();
+        (n, out)
+    };
+    let (n, adi) = export(ExportFormat::Adi);
+    assert_eq!(n, 2600);
+    let (read, _) = read_adi(&adi);
+    let ids: Vec<ContactId> = read.into_iter().map(|c| c.unwrap().id).collect();
+    let expected: Vec<ContactId> = many.iter().map(|c| c.id).collect();
+    assert_eq!(ids, expected);
+    let (n, adx) = export(ExportFormat::Adx);
+    assert_eq!(n, 2600);
+    let adx = String::from_utf8(adx).unwrap();
+    assert_eq!(adx.matches("<RECORD>").count(), 2600);
+    assert!(adx.starts_with("<?xml") && adx.trim_end().ends_with("</ADX>"));
+    let (n, csv) = export(ExportFormat::Csv);
+    assert_eq!(n, 2600);
+    let csv = String::from_utf8(csv).unwrap();
+    let first_column: Vec<&str> = csv
+        .lines()
+        .skip(1)
+        .filter_map(|l| l.split(',').next())
+        .filter(|id| id.len() == 36)
+        .collect();
+    let expected: Vec<String> = many.iter().map(|c| c.id.to_string()).collect();
+    assert_eq!(first_column, expected);
+}
