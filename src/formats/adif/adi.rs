@@ -32,9 +32,16 @@ struct Span {
 
 /// A record as read: field names (upper case) and values (UTF-8), with the line each field
 /// started on. Reused from record to record.
+///
+/// Fields are collected as bytes (every piece added is valid UTF-8) and the record's text is
+/// checked once when it is complete, not once per field.
 #[derive(Debug, Default, Clone)]
 pub struct RawRecord {
-    data: String,
+    /// The fields' text while the record is read.
+    bytes: Vec<u8>,
+    /// The same text once the record is complete (see `seal`).
+    text: String,
+    sealed: bool,
     fields: Vec<Span>,
     /// Line of the first field.
     pub line: u32,
@@ -47,7 +54,8 @@ pub struct RawRecord {
 
 impl RawRecord {
     pub fn clear(&mut self) {
-        self.data.clear();
+        self.unseal();
+        self.bytes.clear();
         self.fields.clear();
         self.line = 0;
         self.warnings.clear();
@@ -55,12 +63,45 @@ impl RawRecord {
         self.seen = 0;
     }
 
+    /// Makes the text readable as `str` (one check of the whole record), for a record that
+    /// is complete. Reading an unsealed record works too, checking the text at each read.
+    pub(super) fn seal(&mut self) {
+        if !self.sealed {
+            let bytes = std::mem::take(&mut self.bytes);
+            // Only UTF-8 is ever added, so this does not fail; if it did, the fields would
+            // read as empty rather than wrong.
+            self.text = String::from_utf8(bytes).unwrap_or_default();
+            self.sealed = true;
+        }
+    }
+
+    /// Back to collecting bytes (no copy).
+    fn unseal(&mut self) {
+        if self.sealed {
+            self.bytes = std::mem::take(&mut self.text).into_bytes();
+            self.sealed = false;
+        }
+    }
+
+    fn raw(&self) -> &[u8] {
+        if self.sealed {
+            self.text.as_bytes()
+        } else {
+            &self.bytes
+        }
+    }
+
     /// Every field in file order: (name, value, line).
     pub fn fields(&self) -> impl Iterator<Item = (&str, &str, u32)> {
-        self.fields.iter().map(|s| {
+        let text = if self.sealed {
+            self.text.as_str()
+        } else {
+            std::str::from_utf8(&self.bytes).unwrap_or_default()
+        };
+        self.fields.iter().map(move |s| {
             (
-                &self.data[s.name.clone()],
-                &self.data[s.value.clone()],
+                text.get(s.name.clone()).unwrap_or_default(),
+                text.get(s.value.clone()).unwrap_or_default(),
                 s.line,
             )
         })
@@ -86,45 +127,64 @@ impl RawRecord {
 
     /// Adds a field (used by the ADX reader and tests).
     pub fn push(&mut self, name: &str, value: &str, line: u32) {
+        self.push_parts(name.as_bytes(), value.as_bytes(), line);
+    }
+
+    /// Adds a field whose name is valid text and whose value is UTF-8 (not checked here).
+    fn push_parts(&mut self, name: &[u8], value: &[u8], line: u32) {
+        self.unseal();
         if self.fields.is_empty() {
             self.line = line;
         }
-        let n0 = self.data.len();
-        self.data.push_str(name);
-        self.data[n0..].make_ascii_uppercase();
-        let v0 = self.data.len();
-        self.data.push_str(value);
+        let n0 = self.bytes.len();
+        self.bytes.extend_from_slice(name);
+        self.bytes[n0..].make_ascii_uppercase();
+        let v0 = self.bytes.len();
+        self.bytes.extend_from_slice(value);
         self.fields.push(Span {
             name: n0..v0,
-            value: v0..self.data.len(),
+            value: v0..self.bytes.len(),
             line,
         });
-        self.seen |= name_bit(&self.data[n0..v0]);
+        self.seen |= name_bit(&self.bytes[n0..v0]);
     }
 
-    /// Adds a field whose name is already upper case.
-    fn push_upper(&mut self, name: &str, value: &str, line: u32) {
+    /// Adds a field from ASCII `NAME:LEN>VALUE` bytes: the name is the first `name_len` bytes
+    /// (made upper case here when it has `lower` case letters), the value starts at
+    /// `value_at`. One copy for the whole field.
+    fn push_tagged(
+        &mut self,
+        tagged: &[u8],
+        name_len: usize,
+        lower: bool,
+        value_at: usize,
+        line: u32,
+    ) {
+        self.unseal();
         if self.fields.is_empty() {
             self.line = line;
         }
-        let n0 = self.data.len();
-        self.data.push_str(name);
-        let v0 = self.data.len();
-        self.data.push_str(value);
+        let n0 = self.bytes.len();
+        self.bytes.extend_from_slice(tagged);
+        if lower {
+            self.bytes[n0..n0 + name_len].make_ascii_uppercase();
+        }
         self.fields.push(Span {
-            name: n0..v0,
-            value: v0..self.data.len(),
+            name: n0..n0 + name_len,
+            value: n0 + value_at..self.bytes.len(),
             line,
         });
-        self.seen |= name_bit(name);
+        self.seen |= name_bit(&self.bytes[n0..n0 + name_len]);
     }
 
-    fn has(&self, upper: &str) -> bool {
-        self.seen & name_bit(upper) != 0
+    /// Whether the record has a field of this name, given in any case.
+    fn has(&self, name: &[u8]) -> bool {
+        let raw = self.raw();
+        self.seen & name_bit(name) != 0
             && self
                 .fields
                 .iter()
-                .any(|s| &self.data[s.name.clone()] == upper)
+                .any(|s| raw[s.name.clone()].eq_ignore_ascii_case(name))
     }
 
     fn reject(&mut self, e: RecordError) {
@@ -134,12 +194,10 @@ impl RawRecord {
     }
 }
 
-/// The bit of a field name in a record's name filter.
-fn name_bit(name: &str) -> u64 {
-    let b = name.as_bytes();
-    let h = b.len() as u64 * 31
-        + b.first().map_or(0, |c| u64::from(*c)) * 7
-        + b.last().map_or(0, |c| u64::from(*c));
+/// The bit of a field name in a record's name filter (the same for any case).
+fn name_bit(b: &[u8]) -> u64 {
+    let up = |c: &u8| u64::from(c.to_ascii_uppercase());
+    let h = b.len() as u64 * 31 + b.first().map_or(0, up) * 7 + b.last().map_or(0, up);
     1 << (h % 64)
 }
 
@@ -278,12 +336,17 @@ impl<R: Read> AdiReader<R> {
         if w[0] != b'<' {
             return false;
         }
-        let Some(name_len) = w[1..]
-            .iter()
-            .position(|b| !(b.is_ascii_alphanumeric() || *b == b'_'))
-        else {
-            return false;
-        };
+        // Letters, digits and `_`, noting whether any letter is lower case.
+        let mut name_len = 0;
+        let mut lower = false;
+        for b in &w[1..] {
+            match b {
+                b'A'..=b'Z' | b'0'..=b'9' | b'_' => {}
+                b'a'..=b'z' => lower = true,
+                _ => break,
+            }
+            name_len += 1;
+        }
         if name_len == 0 || name_len > 64 || w.get(1 + name_len) != Some(&b':') {
             return false;
         }
@@ -321,21 +384,13 @@ impl<R: Read> AdiReader<R> {
         if high != 0 {
             return false;
         }
-        let mut upper = [0u8; 64];
-        upper[..name_len].copy_from_slice(&w[1..1 + name_len]);
-        upper[..name_len].make_ascii_uppercase();
-        let (Ok(name), Ok(value)) = (
-            std::str::from_utf8(&upper[..name_len]),
-            std::str::from_utf8(value),
-        ) else {
-            return false;
-        };
-        if rec.has(name) {
+        // The tag's body and the value together: `NAME:LEN>VALUE`, all ASCII by now.
+        if rec.has(&w[1..1 + name_len]) {
             return false;
         }
         let line = self.line + gap_lines;
         if len > 0 {
-            rec.push_upper(name, value, line);
+            rec.push_tagged(&buf[i + 1..v0 + len], name_len, lower, v0 - (i + 1), line);
         }
         self.line = line + value_lines;
         self.pos = v0 + len;
@@ -472,6 +527,7 @@ impl<R: Read> AdiReader<R> {
                     if rec.is_empty() && rec.rejected.is_none() {
                         continue;
                     }
+                    rec.seal();
                     return Ok(match rec.rejected.take() {
                         Some(e) => Next::Rejected(e),
                         None => Next::Record,
@@ -556,7 +612,7 @@ impl<R: Read> AdiReader<R> {
                 "",
                 format!("more than {MAX_FIELDS} fields in one record"),
             ));
-        } else if rec.has(name) {
+        } else if rec.has(name.as_bytes()) {
             let value = decode(&avail[..take]);
             rec.reject(RecordError::field(
                 line,
@@ -569,7 +625,7 @@ impl<R: Read> AdiReader<R> {
                 rec.warnings.push(format!("line {line}: field {name} holds non-ASCII text (ADI is ASCII only); read as {}", if std::str::from_utf8(&avail[..take]).is_ok() { "UTF-8" } else { "Latin-1" }));
             }
             let value = decode(&avail[..take]);
-            rec.push_upper(name, &value, line);
+            rec.push_parts(name.as_bytes(), value.as_bytes(), line);
         }
         if let Some(n) = note {
             rec.warnings.push(n);
@@ -585,11 +641,12 @@ impl<R: Read> AdiReader<R> {
         if let Some(e) = rec.rejected.take() {
             return Next::Rejected(e);
         }
-        if rec.has("CALL") && rec.has("QSO_DATE") && rec.has("TIME_ON") {
+        if rec.has(b"CALL") && rec.has(b"QSO_DATE") && rec.has(b"TIME_ON") {
             rec.warnings.push(format!(
                 "line {}: the last record has no <EOR>; kept",
                 rec.line
             ));
+            rec.seal();
             Next::Record
         } else {
             let line = rec.line;

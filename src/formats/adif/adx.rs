@@ -235,6 +235,7 @@ impl<R: BufRead> AdxReader<R> {
                             if rec.is_empty() {
                                 continue;
                             }
+                            rec.seal();
                             return Ok(Next::Record);
                         }
                         (Place::Header, "HEADER") | (Place::Records, "RECORDS") => {
