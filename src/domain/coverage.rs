@@ -744,12 +744,13 @@ impl CoverageBuilder {
             && !a.is_too_coarse_for_distance()
             && !b.is_too_coarse_for_distance()
         {
-            let d = self.paths.centre(&a, &b).distance_km;
+            let path = self.paths.centre(&a, &b);
+            let d = path.distance_km;
             if d >= GROUND_WAVE_KM {
                 let mid = *self
                     .midpoints
                     .entry(if a <= b { (a, b) } else { (b, a) })
-                    .or_insert_with(|| super::geo::midpoint(a.centre(), b.centre()));
+                    .or_insert_with(|| super::geo::midpoint_along(a.centre(), &path, b.centre()));
                 // The Sun at the midpoint, on a grid of 0.5° and 10 minutes: plenty for the
                 // reflection height, and computed once per grid cell.
                 let key = (

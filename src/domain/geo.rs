@@ -89,6 +89,19 @@ pub fn midpoint(a: LatLon, b: LatLon) -> LatLon {
     LatLon { lat, lon }
 }
 
+/// [`midpoint`] of `a` and the end of `p`, a path already computed from `a`: one geodesic
+/// problem (the direct one) instead of two.
+pub fn midpoint_along(a: LatLon, p: &Path, b: LatLon) -> LatLon {
+    match p.bearing_deg {
+        Some(azi1) => {
+            let (lat, lon): (f64, f64) =
+                Geodesic::wgs84().direct(a.lat, a.lon, azi1, p.distance_km * 500.0);
+            LatLon { lat, lon }
+        }
+        None => midpoint(a, b),
+    }
+}
+
 /// The path between two locators: centre to centre, with the range of distances the two cells
 /// allow.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -267,6 +280,28 @@ mod tests {
 
     fn loc(s: &str) -> Locator {
         Locator::parse(s).unwrap()
+    }
+
+    #[test]
+    fn the_midpoint_along_a_cached_path_is_the_midpoint() {
+        let mut cache = PathCache::new();
+        for (x, y) in [
+            ("JN17ga", "JN26le"),
+            ("JN26le", "JN17ga"),
+            ("IN97oi", "JN28qu"),
+            ("JN17ga", "JN17gb"),
+            ("JN17ga", "JN17ga"),
+            ("AA00aa", "RR99xx"),
+        ] {
+            let (a, b) = (loc(x), loc(y));
+            let p = cache.centre(&a, &b);
+            let m = midpoint_along(a.centre(), &p, b.centre());
+            let want = midpoint(a.centre(), b.centre());
+            assert!(
+                (m.lat - want.lat).abs() < 1e-9 && (m.lon - want.lon).abs() < 1e-9,
+                "{x}-{y}: {m:?} vs {want:?}"
+            );
+        }
     }
 
     #[test]
