@@ -83,6 +83,7 @@ impl RawRecord {
         }
     }
 
+    #[inline]
     fn raw(&self) -> &[u8] {
         if self.sealed {
             self.text.as_bytes()
@@ -152,6 +153,7 @@ impl RawRecord {
     /// Adds a field from ASCII `NAME:LEN>VALUE` bytes: the name is the first `name_len` bytes
     /// (made upper case here when it has `lower` case letters), the value starts at
     /// `value_at`. One copy for the whole field.
+    #[inline]
     fn push_tagged(
         &mut self,
         tagged: &[u8],
@@ -178,6 +180,7 @@ impl RawRecord {
     }
 
     /// Whether the record has a field of this name, given in any case.
+    #[inline]
     fn has(&self, name: &[u8]) -> bool {
         let raw = self.raw();
         self.seen & name_bit(name) != 0
@@ -200,6 +203,25 @@ fn name_bit(b: &[u8]) -> u64 {
     let h = b.len() as u64 * 31 + b.first().map_or(0, up) * 7 + b.last().map_or(0, up);
     1 << (h % 64)
 }
+
+/// What a byte is in a field name the quick path reads: 0 not allowed, else [`NAME`], with
+/// [`LOWER`] for a lower-case letter.
+const NAME: u8 = 1;
+const LOWER: u8 = 2;
+const NAME_CLASS: [u8; 256] = {
+    let mut t = [0u8; 256];
+    let mut b = 0;
+    while b < 256 {
+        let c = b as u8;
+        t[b] = match c {
+            b'A'..=b'Z' | b'0'..=b'9' | b'_' => NAME,
+            b'a'..=b'z' => NAME | LOWER,
+            _ => 0,
+        };
+        b += 1;
+    }
+    t
+};
 
 /// Line breaks in `b`. Usually a field's worth of bytes: a plain count then beats setting up a
 /// search.
@@ -338,15 +360,16 @@ impl<R: Read> AdiReader<R> {
         }
         // Letters, digits and `_`, noting whether any letter is lower case.
         let mut name_len = 0;
-        let mut lower = false;
+        let mut classes = 0;
         for b in &w[1..] {
-            match b {
-                b'A'..=b'Z' | b'0'..=b'9' | b'_' => {}
-                b'a'..=b'z' => lower = true,
-                _ => break,
+            let c = NAME_CLASS[usize::from(*b)];
+            if c == 0 {
+                break;
             }
+            classes |= c;
             name_len += 1;
         }
+        let lower = classes & LOWER != 0;
         if name_len == 0 || name_len > 64 || w.get(1 + name_len) != Some(&b':') {
             return false;
         }
