@@ -201,6 +201,13 @@ fn review_commands_on_the_demo() {
     assert!(p["relays"].is_array());
     let (_, table, _) = nearsky(&["--db", d, "plan"]);
     assert!(table.lines().all(|l| l.chars().count() <= 80), "{table}");
+    // Every bin's evidence is in the table whole (wrapped under its column, not cut).
+    let flat = table.split_whitespace().collect::<Vec<_>>().join(" ");
+    for b in p["bins"].as_array().unwrap() {
+        let note = b["note"].as_str().unwrap();
+        let note = note.split_whitespace().collect::<Vec<_>>().join(" ");
+        assert!(flat.contains(&note), "{note}\n{table}");
+    }
     let (_, cc, _) = nearsky(&["--db", d, "crosscheck"]);
     assert!(
         cc.contains("confirmed by both sides") && cc.contains("clock may be wrong"),

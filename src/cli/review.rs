@@ -508,16 +508,16 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
             )
             .map_err(io)?;
             for b in &p.bins {
-                writeln!(
-                    out,
-                    "{:<5} {:<7} {:<9} {:>4}  {}",
+                // The evidence wraps under its own column rather than being cut.
+                let first = format!(
+                    "{:<5} {:<7} {:<9} {:>4}  ",
                     b.hour_start,
                     name(b.primary),
                     name(b.alternate),
                     b.attempts,
-                    truncate(&b.note, 49)
-                )
-                .map_err(io)?;
+                );
+                let rest = " ".repeat(first.chars().count());
+                writeln!(out, "{}", wrap(&b.note, &first, &rest)).map_err(io)?;
             }
             if !p.relays.is_empty() {
                 writeln!(
