@@ -17,8 +17,10 @@ use super::stats::{Z95, weighted_median, wilson};
 use super::sun::{self, Daylight};
 use super::{Band, Contact, ContactId, LatLon, Locator, Outcome, Report};
 
-/// A fast hasher for the small integer keys of the cells (the multiply-rotate scheme of
-/// rustc's FxHash); keys here never come from outside, so flooding is no concern.
+/// A fast hasher for the keys here (the multiply-rotate scheme of rustc's FxHash): cell and
+/// link keys are small integers made here; station keys are call signs from the logs, which
+/// have passed `Callsign` validation. The hash is not flood-resistant: a file crafted with
+/// colliding calls could slow one coverage computation down, which is all it could do.
 #[derive(Default, Clone, Copy)]
 struct Fx(u64);
 
