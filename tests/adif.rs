@@ -764,19 +764,24 @@ fn importing_twice_adds_nothing_and_bad_files_are_all_or_nothing() {
     );
 }
 
-#[test]
-fn a_long_export_keeps_every_contact_in_time_order_in_every_format() {
-    // 2,600 contacts: more than two of the export's hand-over batches.
+/// `n` contacts a minute apart, cycling through the fixture's, with ids from `first_id`.
+fn many_contacts(n: u32, first_id: u128) -> Vec<Contact> {
     let base = fixture_contacts();
-    let many: Vec<Contact> = (0..2600u32)
+    (0..n)
         .map(|i| {
             let mut p = as_imported(&base[i as usize % base.len()], "many.adi");
-            p.id = ContactId(Uuid::from_u128(10_000 + u128::from(i)));
+            p.id = ContactId(Uuid::from_u128(first_id + u128::from(i)));
             p.start = fixed_time() + chrono::Duration::minutes(i64::from(i));
             p.end = None;
             Contact::new(p).unwrap()
         })
-        .collect();
+        .collect()
+}
+
+#[test]
+fn a_long_export_keeps_every_contact_in_time_order_in_every_format() {
+    // 2,600 contacts: more than two of the export's hand-over batches.
+    let many = many_contacts(2600, 10_000);
     let (_d, book) = logbook_with(&many);
     let export = |format| {
         let mut out = Vec::new();
@@ -813,4 +818,36 @@ fn a_long_export_keeps_every_contact_in_time_order_in_every_format() {
         .collect();
     let expected: Vec<String> = many.iter().map(|c| c.id.to_string()).collect();
     assert_eq!(first_column, expected);
+}
+
+#[test]
+fn an_export_whose_output_fails_says_so_and_stops() {
+    // An output that takes 10,000 bytes and then fails, as a full disk would.
+    struct Full(usize);
+    impl Write for Full {
+        fn write(&mut self, b: &[u8]) -> std::io::Result<usize> {
+            if self.0 + b.len() > 10_000 {
+                return Err(std::io::Error::other("no space left on device"));
+            }
+            self.0 += b.len();
+            Ok(b.len())
+        }
+        fn flush(&mut self) -> std::io::Result<()> {
+            Ok(())
+        }
+    }
+    let many = many_contacts(3000, 50_000);
+    let (_d, book) = logbook_with(&many);
+    for format in [ExportFormat::Adi, ExportFormat::Adx, ExportFormat::Csv] {
+        let e = transfer::export(
+            &book,
+            &ContactQuery::default(),
+            true,
+            format,
+            Full(0),
+            fixed_time(),
+        )
+        .unwrap_err();
+        assert!(e.to_string().contains("no space left on device"), "{e}");
+    }
 }

@@ -281,11 +281,12 @@ pub fn export(
                 batch.push(s);
             }
             if batch.len() == EXPORT_BATCH {
-                // A closed channel means the formatter failed: join() below says why.
-                let _ = send.send(std::mem::replace(
-                    &mut batch,
-                    Vec::with_capacity(EXPORT_BATCH),
-                ));
+                // A closed channel means the formatter failed: stop reading; join() below
+                // says why.
+                let full = std::mem::replace(&mut batch, Vec::with_capacity(EXPORT_BATCH));
+                if send.send(full).is_err() {
+                    return Err(StoreError::Invalid("the export stopped".into()));
+                }
                 while let Ok(b) = bytes.try_recv() {
                     out.write_all(&b)
                         .map_err(|e| StoreError::Invalid(format!("writing the export: {e}")))?;
@@ -306,8 +307,9 @@ pub fn export(
         let formatted = formatter
             .join()
             .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
-        written?;
+        // The formatter's own error first: when it failed, the reading stopped because of it.
         formatted.map_err(io_err)?;
+        written?;
         rest.map_err(io_err)?;
         out.flush().map_err(io_err)?;
         Ok(n)
