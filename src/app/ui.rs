@@ -401,8 +401,8 @@ impl AppState {
                 let from = c.own.locator.or(home);
                 let (d, b) = match (from, c.locator) {
                     (Some(a), Some(b)) => {
-                        let p = geo::locator_path(&a, &b);
-                        (Some(p.centre.distance_km), p.centre.bearing_deg)
+                        let p = geo::centre_path(&a, &b);
+                        (Some(p.distance_km), p.bearing_deg)
                     }
                     _ => (None, None),
                 };
@@ -544,9 +544,9 @@ impl AppState {
         let loc = Locator::parse(self.entry.get(Field::Locator)).ok();
         let path = match (self.data.locator, loc) {
             (Some(a), Some(b)) => {
-                let p = geo::locator_path(&a, &b);
-                match p.centre.bearing_deg {
-                    Some(brg) => format!("{:.0} km {brg:.0} deg", p.centre.distance_km),
+                let p = geo::centre_path(&a, &b);
+                match p.bearing_deg {
+                    Some(brg) => format!("{:.0} km {brg:.0} deg", p.distance_km),
                     None => "same square".to_string(),
                 }
             }
@@ -1131,8 +1131,8 @@ impl AppState {
             .map(|e| {
                 let path = match (home, e.locator) {
                     (Some(a), Some(b)) => {
-                        let p = geo::locator_path(&a, &b);
-                        Some((p.centre.distance_km, p.centre.bearing_deg))
+                        let p = geo::centre_path(&a, &b);
+                        Some((p.distance_km, p.bearing_deg))
                     }
                     _ => None,
                 };

@@ -134,9 +134,9 @@ pub fn describe(c: &Contact) -> String {
         s.push_str(&format!(" rcvd {r}"));
     }
     if let (Some(a), Some(b)) = (&c.own.locator, &c.locator) {
-        let p = geo::locator_path(a, b);
-        match p.centre.bearing_deg {
-            Some(brg) => s.push_str(&format!(", {:.0} km at {brg:.0} deg", p.centre.distance_km)),
+        let p = geo::centre_path(a, b);
+        match p.bearing_deg {
+            Some(brg) => s.push_str(&format!(", {:.0} km at {brg:.0} deg", p.distance_km)),
             None => s.push_str(", same square"),
         }
     }
@@ -146,8 +146,8 @@ pub fn describe(c: &Contact) -> String {
 fn distance_bearing(c: &Contact) -> (Option<f64>, Option<f64>) {
     match (&c.own.locator, &c.locator) {
         (Some(a), Some(b)) => {
-            let p = geo::locator_path(a, b);
-            (Some(p.centre.distance_km), p.centre.bearing_deg)
+            let p = geo::centre_path(a, b);
+            (Some(p.distance_km), p.bearing_deg)
         }
         _ => (None, None),
     }
@@ -718,12 +718,10 @@ pub fn roster(
             for e in book.roster().map_err(st)? {
                 let (km, brg) = match (&home, &e.locator) {
                     (Some(a), Some(b)) => {
-                        let p = geo::locator_path(a, b);
+                        let p = geo::centre_path(a, b);
                         (
-                            format!("{:.0}", p.centre.distance_km),
-                            p.centre
-                                .bearing_deg
-                                .map_or("-".into(), |b| format!("{b:.0}")),
+                            format!("{:.0}", p.distance_km),
+                            p.bearing_deg.map_or("-".into(), |b| format!("{b:.0}")),
                         )
                     }
                     _ => (String::new(), String::new()),

@@ -172,8 +172,7 @@ pub fn generate(seed: u64) -> Scenario {
                        rng: &mut Rng,
                        contacts: &mut Vec<Contact>| {
         let (a, b) = (where_is(from, t), where_is(to, t));
-        let p = paths.get(&a, &b);
-        let d = p.centre.distance_km;
+        let d = paths.centre(&a, &b).distance_km;
         let mid = crate::domain::geo::midpoint(a.centre(), b.centre());
         // The F2 layer lags the Sun by an hour or so: foF2 follows the Sun of 75 minutes ago.
         let sc = sun::position(centre, t - Duration::minutes(75)).elevation_deg;

@@ -102,6 +102,19 @@ pub fn midpoint_along(a: LatLon, p: &Path, b: LatLon) -> LatLon {
     }
 }
 
+/// The geodesic from the centre of one locator to the centre of the other: one geodesic
+/// problem, where [`locator_path`] also searches the cells' edges (thousands). For cells
+/// that overlap the direction is `SameSpot`, with no bearing.
+pub fn centre_path(a: &Locator, b: &Locator) -> Path {
+    let mut p = path(a.centre(), b.centre());
+    if a.lies_in(b) || b.lies_in(a) {
+        p.direction = Direction::SameSpot;
+        p.bearing_deg = None;
+        p.reverse_bearing_deg = None;
+    }
+    p
+}
+
 /// The path between two locators: centre to centre, with the range of distances the two cells
 /// allow.
 #[derive(Debug, Clone, Copy, PartialEq, Serialize)]
@@ -181,12 +194,7 @@ fn cells_touch(a: &Locator, b: &Locator) -> bool {
 
 /// Distance, bearings and the distance range between two locators.
 pub fn locator_path(a: &Locator, b: &Locator) -> LocatorPath {
-    let mut centre = path(a.centre(), b.centre());
-    if a.lies_in(b) || b.lies_in(a) {
-        centre.direction = Direction::SameSpot;
-        centre.bearing_deg = None;
-        centre.reverse_bearing_deg = None;
-    }
+    let centre = centre_path(a, b);
     let (pa, pb) = (boundary(a), boundary(b));
     let g = Geodesic::wgs84();
     let mut min_km = f64::INFINITY;
@@ -244,15 +252,10 @@ impl PathCache {
         } else {
             ((*b, *a), true)
         };
-        let p = *self.centres.entry(key).or_insert_with(|| {
-            let mut p = path(key.0.centre(), key.1.centre());
-            if key.0.lies_in(&key.1) || key.1.lies_in(&key.0) {
-                p.direction = Direction::SameSpot;
-                p.bearing_deg = None;
-                p.reverse_bearing_deg = None;
-            }
-            p
-        });
+        let p = *self
+            .centres
+            .entry(key)
+            .or_insert_with(|| centre_path(&key.0, &key.1));
         if flipped {
             Path {
                 bearing_deg: p.reverse_bearing_deg,

@@ -53,13 +53,12 @@ pub fn write_row(
     let t = |x: chrono::DateTime<chrono::Utc>| x.format("%Y-%m-%dT%H:%M:%SZ").to_string();
     let (km, brg) = match (&c.own.locator, &c.locator) {
         (Some(a), Some(b)) => {
-            let p = paths.get(a, b);
+            // Centre to centre only: the cell-range search of a full locator path costs
+            // thousands of geodesics, for figures the row does not show.
+            let p = paths.centre(a, b);
             (
-                format!("{:.1}", p.centre.distance_km),
-                p.centre
-                    .bearing_deg
-                    .map(|b| format!("{b:.0}"))
-                    .unwrap_or_default(),
+                format!("{:.1}", p.distance_km),
+                p.bearing_deg.map(|b| format!("{b:.0}")).unwrap_or_default(),
             )
         }
         _ => (String::new(), String::new()),

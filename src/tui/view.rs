@@ -628,9 +628,9 @@ fn draw_map(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
     };
     // Stations placed by bearing and distance from the own station.
     let place = |l: &crate::domain::Locator| {
-        let p = crate::domain::geo::locator_path(&home, l);
-        let d = p.centre.distance_km;
-        let b = p.centre.bearing_deg.unwrap_or(0.0).to_radians();
+        let p = crate::domain::geo::centre_path(&home, l);
+        let d = p.distance_km;
+        let b = p.bearing_deg.unwrap_or(0.0).to_radians();
         (d * b.sin(), d * b.cos())
     };
     let pos: Vec<(String, (f64, f64))> = c

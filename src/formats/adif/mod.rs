@@ -233,7 +233,7 @@ pub fn for_each_field(
     {
         f(
             "DISTANCE",
-            &format!("{:.1}", paths.get(a, b).centre.distance_km),
+            &format!("{:.1}", paths.centre(a, b).distance_km),
         )?;
     }
     if let Some(a) = &c.own.antenna {
