@@ -48,6 +48,13 @@ impl Outcome {
 
     /// Parses `worked`/`w`, `partial`/`p`, `none`/`n`/`no contact` (any case).
     pub fn parse(input: &str) -> Result<Self, OutcomeError> {
+        // The stored keys themselves first: the store reads one per contact.
+        match input {
+            "worked" => return Ok(Self::Worked),
+            "partial" => return Ok(Self::Partial),
+            "none" => return Ok(Self::NoContact),
+            _ => {}
+        }
         match input.trim().to_ascii_lowercase().as_str() {
             "worked" | "w" => Ok(Self::Worked),
             "partial" | "p" => Ok(Self::Partial),
