@@ -205,19 +205,16 @@ pub fn print_net(out: &mut impl Write) -> std::io::Result<()> {
         let Ok(l) = Locator::parse(s.locator) else {
             continue;
         };
-        let p = geo::locator_path(&home, &l);
-        let brg = p
-            .centre
-            .bearing_deg
-            .map_or("-".to_string(), |b| format!("{b:.0}"));
-        let class = PathClass::of(p.centre.distance_km, DAY_HEIGHT_KM);
+        let p = geo::centre_path(&home, &l);
+        let brg = p.bearing_deg.map_or("-".to_string(), |b| format!("{b:.0}"));
+        let class = PathClass::of(p.distance_km, DAY_HEIGHT_KM);
         writeln!(
             out,
             "{:<7} {:<13} {:<7} {:>6.1} {:>4} {:>3}  {}",
             s.call,
             s.tactical,
             l,
-            p.centre.distance_km,
+            p.distance_km,
             brg,
             s.power_w,
             class.words()
@@ -244,11 +241,7 @@ mod tests {
         let home = Locator::parse(STATIONS[0].locator).unwrap();
         let d: Vec<f64> = STATIONS[1..]
             .iter()
-            .map(|s| {
-                geo::locator_path(&home, &Locator::parse(s.locator).unwrap())
-                    .centre
-                    .distance_km
-            })
+            .map(|s| geo::centre_path(&home, &Locator::parse(s.locator).unwrap()).distance_km)
             .collect();
         let min = d.iter().copied().fold(f64::INFINITY, f64::min);
         let max = d.iter().copied().fold(0.0, f64::max);

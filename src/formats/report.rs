@@ -300,7 +300,7 @@ fn map_svg(c: &Coverage, band: Band, home: Option<Locator>) -> String {
         .iter()
         .filter_map(|(call, l)| {
             let l = l.as_ref()?;
-            let p = geo::locator_path(&home, l).centre;
+            let p = geo::centre_path(&home, l);
             let b = p.bearing_deg.unwrap_or(0.0).to_radians();
             Some((
                 call.as_str(),
