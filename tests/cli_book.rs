@@ -79,6 +79,20 @@ fn a_logged_contact_shows_distance_bearing_and_lands_in_the_list() {
 }
 
 #[test]
+fn listing_an_unknown_drill_is_refused_like_the_other_commands() {
+    let (_d, db) = setup();
+    let (code, out, err) = run(&db, &["list", "--drill", "Spring drill"]);
+    assert_eq!(code, 2, "{out}");
+    assert!(
+        err.contains("--drill: drill `Spring drill` not found"),
+        "{err}"
+    );
+    // A drill that exists, and `all`, still list.
+    ok(&db, &["list", "--drill", "Test drill"]);
+    ok(&db, &["list", "--drill", "all"]);
+}
+
+#[test]
 fn a_failed_attempt_is_logged_and_band_and_mode_carry_over() {
     let (_d, db) = setup();
     ok(

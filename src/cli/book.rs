@@ -318,11 +318,7 @@ pub fn note(
 
 pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(), CliError> {
     let book = open(db)?;
-    let drill = match a.drill.as_deref() {
-        Some("all") => None,
-        Some(d) => Some(d.to_string()),
-        None => book.current_drill().map_err(st)?,
-    };
+    let drill = super::review::drill_name(&book, a.drill.as_deref())?;
     let band = band_flag(a.band.as_deref())?;
     let q = ContactQuery {
         drill,

@@ -18,7 +18,9 @@ use crate::domain::plan::{Plan, PlanConfig, make_plan};
 use crate::domain::{Band, Outcome};
 use crate::store::Logbook;
 
-fn drill_name(book: &Logbook, given: Option<&str>) -> Result<Option<String>, CliError> {
+/// The drill a command works on: the one named (which must exist; `all` for every drill), or
+/// the drill in use.
+pub(super) fn drill_name(book: &Logbook, given: Option<&str>) -> Result<Option<String>, CliError> {
     let fail = |e: crate::store::StoreError| CliError::Failure(e.into());
     match given {
         Some("all") => Ok(None),
