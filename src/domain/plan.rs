@@ -133,38 +133,60 @@ fn rank_bands(c: &Coverage, bin: usize, min_attempts: u32) -> Vec<Ranked> {
     r
 }
 
-/// The links that worked in one bin: each link's strength (its best band's lower Wilson
-/// limit) as a dense matrix over the stations, negative where none worked, and for each
-/// station the set of stations it worked, as bits.
+/// Up to this many stations, [`Worked`] also keeps a dense strength matrix and per-station
+/// bit sets (at most 8 MiB and 128 KiB), which make the relay search fast; above it, only the
+/// sorted lists, so that memory never grows with the square of a huge log's stations.
+const DENSE_STATIONS: usize = 1024;
+
+/// The links that worked in one bin: each station's list of the stations it worked, with the
+/// link's strength (its best band's lower Wilson limit), sorted by station; for a net of up
+/// to [`DENSE_STATIONS`] also the same as a matrix and as bit sets.
 struct Worked {
-    n: usize,
+    adjacent: Vec<Vec<(usize, f64)>>,
+    /// The stations with a list, to clear them for the next bin.
+    touched: Vec<usize>,
+    dense: Option<Dense>,
+}
+
+struct Dense {
     strength: Vec<f64>,
     words: usize,
     bits: Vec<u64>,
-    /// The links filled in, to clear them for the next bin.
-    set: Vec<(usize, usize)>,
 }
 
 impl Worked {
     fn new(n: usize) -> Self {
+        Self::with_dense(n, n <= DENSE_STATIONS)
+    }
+
+    fn with_dense(n: usize, dense: bool) -> Self {
         let words = n.div_ceil(64);
         Self {
-            n,
-            strength: vec![-1.0; n * n],
-            words,
-            bits: vec![0; n * words],
-            set: Vec::new(),
+            adjacent: vec![Vec::new(); n],
+            touched: Vec::new(),
+            dense: dense.then(|| Dense {
+                strength: vec![-1.0; n * n],
+                words,
+                bits: vec![0; n * words],
+            }),
         }
+    }
+
+    fn stations(&self) -> usize {
+        self.adjacent.len()
     }
 
     /// Fills in the links of one bin (after clearing what the previous bin left).
     fn fill(&mut self, c: &Coverage, bin: usize, active: &[usize]) {
-        let (n, words) = (self.n, self.words);
-        for (a, b) in std::mem::take(&mut self.set) {
-            self.strength[a * n + b] = -1.0;
-            self.strength[b * n + a] = -1.0;
-            self.bits[a * words + b / 64] = 0;
-            self.bits[b * words + a / 64] = 0;
+        let n = self.stations();
+        for x in std::mem::take(&mut self.touched) {
+            if let Some(d) = &mut self.dense {
+                for &(y, _) in &self.adjacent[x] {
+                    d.strength[x * n + y] = -1.0;
+                }
+                d.bits[x * d.words..(x + 1) * d.words].fill(0);
+            }
+            self.adjacent[x].clear();
         }
         for l in active.iter().map(|i| &c.links[*i]) {
             let best = l
@@ -181,30 +203,56 @@ impl Worked {
                 && a < n
                 && b < n
             {
-                self.strength[a * n + b] = s;
-                self.strength[b * n + a] = s;
-                self.bits[a * words + b / 64] |= 1 << (b % 64);
-                self.bits[b * words + a / 64] |= 1 << (a % 64);
-                self.set.push((a, b));
+                for (x, y) in [(a, b), (b, a)] {
+                    if self.adjacent[x].is_empty() {
+                        self.touched.push(x);
+                    }
+                    self.adjacent[x].push((y, s));
+                    if let Some(d) = &mut self.dense {
+                        d.strength[x * n + y] = s;
+                        d.bits[x * d.words + y / 64] |= 1 << (y % 64);
+                    }
+                }
             }
+        }
+        for x in &self.touched {
+            self.adjacent[*x].sort_unstable_by_key(|e| e.0);
         }
     }
 
-    fn strength(&self, a: usize, b: usize) -> f64 {
-        self.strength[a * self.n + b]
-    }
-
-    /// Stations that worked both `a` and `b`, with the weaker of the two links.
+    /// Stations that worked both `a` and `b`, with the weaker of the two links, in station
+    /// order.
     fn common(&self, a: usize, b: usize, out: &mut Vec<(usize, f64)>) {
         out.clear();
-        let (ra, rb) = (a * self.words, b * self.words);
-        for w in 0..self.words {
-            let mut both = self.bits[ra + w] & self.bits[rb + w];
-            while both != 0 {
-                let k = w * 64 + both.trailing_zeros() as usize;
-                both &= both - 1;
-                if k != a && k != b {
-                    out.push((k, self.strength(a, k).min(self.strength(b, k))));
+        if let Some(d) = &self.dense {
+            let n = self.stations();
+            let (ra, rb) = (a * d.words, b * d.words);
+            for w in 0..d.words {
+                let mut both = d.bits[ra + w] & d.bits[rb + w];
+                while both != 0 {
+                    let k = w * 64 + both.trailing_zeros() as usize;
+                    both &= both - 1;
+                    if k != a && k != b {
+                        out.push((k, d.strength[a * n + k].min(d.strength[b * n + k])));
+                    }
+                }
+            }
+            return;
+        }
+        // One merge of the two sorted lists.
+        let (xs, ys) = (&self.adjacent[a], &self.adjacent[b]);
+        let (mut i, mut j) = (0, 0);
+        while i < xs.len() && j < ys.len() {
+            let ((k, sa), (m, sb)) = (xs[i], ys[j]);
+            match k.cmp(&m) {
+                std::cmp::Ordering::Less => i += 1,
+                std::cmp::Ordering::Greater => j += 1,
+                std::cmp::Ordering::Equal => {
+                    if k != a && k != b {
+                        out.push((k, sa.min(sb)));
+                    }
+                    i += 1;
+                    j += 1;
                 }
             }
         }
@@ -262,7 +310,7 @@ fn plan_for_bin(
                 continue;
             }
             let (a, b) = (l.ia as usize, l.ib as usize);
-            if a >= worked.n || b >= worked.n {
+            if a >= worked.stations() || b >= worked.stations() {
                 continue;
             }
             worked.common(a, b, &mut found);
@@ -502,4 +550,90 @@ pub fn primary_counts(plan: &Plan) -> BTreeMap<Band, usize> {
         *m.entry(b).or_insert(0) += 1;
     }
     m
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::domain::coverage::{CoverageConfig, coverage};
+    use crate::domain::{
+        Callsign, Contact, ContactId, ContactParts, Frequency, Locator, Mode, Origin, Outcome,
+        StationSnapshot,
+    };
+    use chrono::{TimeZone, Utc};
+
+    /// A pseudo-random drill among 40 stations (a fixed linear congruential sequence).
+    fn drill() -> Coverage {
+        let mut x: u64 = 20251004;
+        let mut next = |m: u64| {
+            x = x
+                .wrapping_mul(6364136223846793005)
+                .wrapping_add(1442695040888963407);
+            (x >> 33) % m
+        };
+        let calls: Vec<Callsign> = (0..40)
+            .map(|i| Callsign::parse(&format!("Q{}T{:02}", i % 10, i)).unwrap())
+            .collect();
+        let grid = Locator::parse("JN17ga").unwrap();
+        let t0 = Utc.with_ymd_and_hms(2025, 10, 4, 0, 0, 0).unwrap();
+        let contacts: Vec<Contact> = (0..3000u64)
+            .map(|i| {
+                let a = next(40) as usize;
+                let b = (a + 1 + next(39) as usize) % 40;
+                let f = Frequency::from_hz([3_600_000, 7_100_000][next(2) as usize]).unwrap();
+                Contact::new(ContactParts {
+                    id: ContactId(uuid::Uuid::from_u128(u128::from(i) + 1)),
+                    drill: None,
+                    own: StationSnapshot {
+                        call: calls[a].clone(),
+                        operator: None,
+                        locator: Some(grid),
+                        power: None,
+                        antenna: None,
+                    },
+                    call: calls[b].clone(),
+                    locator: Some(grid),
+                    start: t0 + chrono::Duration::seconds(i as i64 * 28),
+                    end: None,
+                    band: Band::containing(f).unwrap(),
+                    frequency: Some(f),
+                    mode: Mode::parse("LSB").unwrap(),
+                    sent: None,
+                    rcvd: None,
+                    other_power: None,
+                    outcome: [Outcome::Worked, Outcome::NoContact][next(2) as usize],
+                    via: None,
+                    note: String::new(),
+                    origin: Origin::LoggedHere,
+                })
+                .unwrap()
+            })
+            .collect();
+        coverage(&contacts, &[], CoverageConfig::default()).unwrap()
+    }
+
+    #[test]
+    fn the_dense_and_the_sparse_relay_search_agree() {
+        let c = drill();
+        let n = c.stations.len();
+        assert_eq!(n, 40);
+        let all: Vec<usize> = (0..c.links.len()).collect();
+        let (mut dense, mut sparse) = (Worked::with_dense(n, true), Worked::with_dense(n, false));
+        let (mut x, mut y) = (Vec::new(), Vec::new());
+        let mut found = 0;
+        // Every bin in turn, so that clearing the previous bin is checked too.
+        for bin in 0..c.config.bins() {
+            dense.fill(&c, bin, &all);
+            sparse.fill(&c, bin, &all);
+            for a in 0..n {
+                for b in 0..n {
+                    dense.common(a, b, &mut x);
+                    sparse.common(a, b, &mut y);
+                    assert_eq!(x, y, "bin {bin}, stations {a} and {b}");
+                    found += x.len();
+                }
+            }
+        }
+        assert!(found > 1000, "the drill has relays to find: {found}");
+    }
 }
