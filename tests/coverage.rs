@@ -40,6 +40,19 @@ impl Log {
         outcome: Outcome,
         rcvd: Option<&str>,
     ) -> &mut Self {
+        self.add_at((from, loc(from)), (to, loc(to)), t, freq, outcome, rcvd)
+    }
+
+    /// Like `add`, for stations outside `STATIONS`, each given with its locator.
+    fn add_at(
+        &mut self,
+        (from, from_loc): (&str, Locator),
+        (to, to_loc): (&str, Locator),
+        t: DateTime<Utc>,
+        freq: &str,
+        outcome: Outcome,
+        rcvd: Option<&str>,
+    ) -> &mut Self {
         let f = Frequency::parse(freq).unwrap();
         let c = Contact::new(ContactParts {
             id: ContactId(Uuid::from_u128(self.0.len() as u128 + 1)),
@@ -47,12 +60,12 @@ impl Log {
             own: StationSnapshot {
                 call: Callsign::parse(from).unwrap(),
                 operator: None,
-                locator: Some(loc(from)),
+                locator: Some(from_loc),
                 power: None,
                 antenna: None,
             },
             call: Callsign::parse(to).unwrap(),
-            locator: Some(loc(to)),
+            locator: Some(to_loc),
             start: t,
             end: None,
             band: Band::containing(f).unwrap(),
@@ -467,39 +480,11 @@ fn contradictions_beyond_the_cap_are_counted_not_kept() {
 fn relay_candidates_are_the_strongest_five_among_many_stations() {
     // 72 stations (more than one 64-station word of the plan's sets): A and B fail on 40 m at
     // 10 UTC; each of 70 relays worked both of them 1 to 4 times (relay k: 1 + k mod 4).
-    let f = Frequency::parse("7.1").unwrap();
     let grid = Locator::parse("JN17ia").unwrap();
-    let mut log = Vec::new();
+    let mut log = Log::new();
     let mut add = |from: &str, to: &str, outcome: Outcome| {
-        let i = log.len() as i64;
-        log.push(
-            Contact::new(ContactParts {
-                id: ContactId(Uuid::from_u128(i as u128 + 1)),
-                drill: None,
-                own: StationSnapshot {
-                    call: Callsign::parse(from).unwrap(),
-                    operator: None,
-                    locator: Some(grid),
-                    power: None,
-                    antenna: None,
-                },
-                call: Callsign::parse(to).unwrap(),
-                locator: Some(grid),
-                start: at(4, 10, 0, 0) + chrono::Duration::seconds(i * 10),
-                end: None,
-                band: Band::B40m,
-                frequency: Some(f),
-                mode: Mode::parse("LSB").unwrap(),
-                sent: None,
-                rcvd: None,
-                other_power: None,
-                outcome,
-                via: None,
-                note: String::new(),
-                origin: Origin::LoggedHere,
-            })
-            .unwrap(),
-        );
+        let t = at(4, 10, 0, 0) + chrono::Duration::seconds(log.0.len() as i64 * 10);
+        log.add_at((from, grid), (to, grid), t, "7.1", outcome, None);
     };
     for _ in 0..3 {
         add("Q1AAA", "Q2BBB", NoContact);
@@ -511,7 +496,7 @@ fn relay_candidates_are_the_strongest_five_among_many_stations() {
             add("Q2BBB", &relay, Worked);
         }
     }
-    let c = coverage(&log, &[], CoverageConfig::default()).unwrap();
+    let c = log.coverage();
     let plan = make_plan(&c, &PlanConfig::default());
     assert_eq!(plan.bins[10].primary, Some(Band::B40m));
     let ab = plan
