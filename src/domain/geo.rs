@@ -134,14 +134,6 @@ impl LocatorPath {
     pub fn same_cell(&self) -> bool {
         self.centre.direction == Direction::SameSpot
     }
-
-    /// The same path seen from the other end.
-    pub fn reversed(&self) -> LocatorPath {
-        let mut r = *self;
-        r.centre.bearing_deg = self.centre.reverse_bearing_deg;
-        r.centre.reverse_bearing_deg = self.centre.bearing_deg;
-        r
-    }
 }
 
 /// Points sampled per cell edge to find the extreme distances (corners included). The nearest
@@ -217,31 +209,16 @@ pub fn locator_path(a: &Locator, b: &Locator) -> LocatorPath {
     }
 }
 
-/// Locator paths computed once per pair. Coverage over a large log meets the same few hundred
-/// station pairs again and again; the geodesic (and its cell-range search) is done once each.
+/// Centre-to-centre paths computed once per pair. Coverage and exports over a large log meet
+/// the same few hundred station pairs again and again; the geodesic is done once each.
 #[derive(Debug, Default)]
 pub struct PathCache {
-    paths: HashMap<(Locator, Locator), LocatorPath>,
     centres: HashMap<(Locator, Locator), Path>,
 }
 
 impl PathCache {
     pub fn new() -> Self {
         Self::default()
-    }
-
-    /// The path from `a` to `b`, computed on first use.
-    pub fn get(&mut self, a: &Locator, b: &Locator) -> LocatorPath {
-        let (key, flipped) = if a <= b {
-            ((*a, *b), false)
-        } else {
-            ((*b, *a), true)
-        };
-        let p = *self
-            .paths
-            .entry(key)
-            .or_insert_with(|| locator_path(&key.0, &key.1));
-        if flipped { p.reversed() } else { p }
     }
 
     /// The centre-to-centre geodesic only (no cell range): what coverage needs, at the cost of
@@ -269,11 +246,11 @@ impl PathCache {
 
     /// Number of distinct pairs computed so far.
     pub fn len(&self) -> usize {
-        self.paths.len().max(self.centres.len())
+        self.centres.len()
     }
 
     pub fn is_empty(&self) -> bool {
-        self.paths.is_empty() && self.centres.is_empty()
+        self.centres.is_empty()
     }
 }
 
@@ -320,16 +297,13 @@ mod tests {
     #[test]
     fn the_cache_returns_reversed_bearings_for_the_reversed_pair() {
         let mut cache = PathCache::new();
-        let ab = cache.get(&loc("JN17ga"), &loc("IN76qi"));
-        let ba = cache.get(&loc("IN76qi"), &loc("JN17ga"));
+        let ab = cache.centre(&loc("JN17ga"), &loc("IN76qi"));
+        let ba = cache.centre(&loc("IN76qi"), &loc("JN17ga"));
         assert_eq!(cache.len(), 1);
-        assert_eq!(ab.centre.bearing_deg, ba.centre.reverse_bearing_deg);
-        assert_eq!(ab.centre.distance_km, ba.centre.distance_km);
-        let direct = locator_path(&loc("IN76qi"), &loc("JN17ga"));
-        let (x, y) = (
-            direct.centre.bearing_deg.unwrap(),
-            ba.centre.bearing_deg.unwrap(),
-        );
+        assert_eq!(ab.bearing_deg, ba.reverse_bearing_deg);
+        assert_eq!(ab.distance_km, ba.distance_km);
+        let direct = centre_path(&loc("IN76qi"), &loc("JN17ga"));
+        let (x, y) = (direct.bearing_deg.unwrap(), ba.bearing_deg.unwrap());
         assert!((x - y).abs() < 1e-9);
     }
 
