@@ -1,6 +1,6 @@
 //! Profiling aid: coverage + plan of 1,000,000 in-memory contacts among 200 stations, with the
 //! time of each stage. Run: `cargo bench --bench covprof`; `NEARSKY_COVPROF=10000,200` sets
-//! the contacts and stations.
+//! the contacts and stations; `NEARSKY_COVPROF_DIGEST=1` also prints a digest of the result.
 
 #[path = "common/mod.rs"]
 mod common;
@@ -38,4 +38,13 @@ fn main() {
         p.relays.len(),
         c.links.len()
     );
+    // A digest of the whole result, so that a speed change can be shown to change nothing:
+    // FNV-1a over the JSON of the coverage and the plan.
+    if std::env::var_os("NEARSKY_COVPROF_DIGEST").is_some() {
+        let json = serde_json::to_vec(&(&c, &p)).unwrap();
+        let digest = json.iter().fold(0xcbf2_9ce4_8422_2325u64, |h, b| {
+            (h ^ u64::from(*b)).wrapping_mul(0x0100_0000_01b3)
+        });
+        println!("digest {digest:016x} over {} bytes of JSON", json.len());
+    }
 }

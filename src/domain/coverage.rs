@@ -5,55 +5,17 @@
 //! plain data. Memory grows with the number of links × bins and with the records of the last
 //! hour or so (kept to match both sides' logs), not with the length of the log.
 
-use std::collections::{BTreeMap, HashMap, VecDeque};
-use std::hash::{BuildHasherDefault, Hasher};
+use std::collections::{BTreeMap, VecDeque};
 
 use chrono::{DateTime, Duration, NaiveDate, Timelike, Utc};
 use serde::Serialize;
 
 use super::geo::PathCache;
+use super::hashing::FxMap;
 use super::skywave::{GROUND_WAVE_KM, Hop, chapman_foe_mhz, default_height_km};
 use super::stats::{Z95, weighted_median, wilson};
 use super::sun::{self, Daylight};
 use super::{Band, Contact, ContactId, LatLon, Locator, Outcome, Report};
-
-/// A fast hasher for the keys here (the multiply-rotate scheme of rustc's FxHash): cell and
-/// link keys are small integers made here; station keys are call signs from the logs, which
-/// have passed `Callsign` validation. The hash is not flood-resistant: a file crafted with
-/// colliding calls could slow one coverage computation down, which is all it could do.
-#[derive(Default, Clone, Copy)]
-struct Fx(u64);
-
-impl Hasher for Fx {
-    fn write(&mut self, bytes: &[u8]) {
-        let mut chunks = bytes.chunks_exact(8);
-        for c in &mut chunks {
-            self.write_u64(u64::from_le_bytes([
-                c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7],
-            ]));
-        }
-        for b in chunks.remainder() {
-            self.write_u64(u64::from(*b));
-        }
-    }
-    fn write_u8(&mut self, v: u8) {
-        self.write_u64(u64::from(v));
-    }
-    fn write_u32(&mut self, v: u32) {
-        self.write_u64(u64::from(v));
-    }
-    fn write_usize(&mut self, v: usize) {
-        self.write_u64(v as u64);
-    }
-    fn write_u64(&mut self, v: u64) {
-        self.0 = (self.0.rotate_left(5) ^ v).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
-    }
-    fn finish(&self) -> u64 {
-        self.0
-    }
-}
-
-type FxMap<K, V> = HashMap<K, V, BuildHasherDefault<Fx>>;
 
 /// How coverage is counted.
 #[derive(Debug, Clone, PartialEq, Serialize)]
@@ -353,12 +315,47 @@ struct Pending {
     from: u32,
     id: ContactId,
     start: DateTime<Utc>,
+    /// `start` in nanoseconds since 1970, for cheap comparisons.
+    at: i128,
     band: Band,
     outcome: Outcome,
     rcvd: Option<Report>,
     freq_mhz: Option<f64>,
     ends: (Option<Locator>, Option<Locator>),
     flagged: bool,
+    /// Already paired with the other side's record: kept in place until its turn to expire,
+    /// so that the list stays in arrival order without shifting.
+    matched: bool,
+}
+
+/// The pending records of one link, in arrival order.
+#[derive(Default)]
+struct LinkPending {
+    records: VecDeque<Pending>,
+    /// Whether the start times never decrease along `records`. Then a search for records
+    /// within the tolerance of a time may begin where that window begins; otherwise (records
+    /// logged out of order) every record is visited.
+    in_order: bool,
+}
+
+impl LinkPending {
+    fn push(&mut self, rec: Pending) {
+        match self.records.back() {
+            None => self.in_order = true,
+            Some(last) if rec.start < last.start => self.in_order = false,
+            Some(_) => {}
+        }
+        self.records.push_back(rec);
+    }
+
+    /// Where to begin looking for a live record that starts at or after `from` (ns).
+    fn first_at_or_after(&self, from: i128, linear: bool) -> usize {
+        if self.in_order && !linear {
+            self.records.partition_point(|p| p.at < from)
+        } else {
+            0
+        }
+    }
 }
 
 #[derive(Default)]
@@ -428,9 +425,14 @@ pub struct CoverageBuilder {
     config: CoverageConfig,
     stations: Stations,
     paths: PathCache,
-    pending: FxMap<(u32, u32), Vec<Pending>>,
-    /// Pending records in arrival order, so expiry visits only what expires.
+    /// Pending records by link. A link's entry stays once made: memory follows the links.
+    pending: FxMap<(u32, u32), LinkPending>,
+    /// Pending records in arrival order, so expiry visits only what expires. A link's records
+    /// appear here in the same order as in its [`LinkPending`], so the record to expire is
+    /// always at the front of its link's list.
     queue: VecDeque<(DateTime<Utc>, (u32, u32), ContactId)>,
+    /// Test only: search every pending record, as if none were in order.
+    linear: bool,
     cells: FxMap<((u32, u32), Band, usize), Cell>,
     midpoints: FxMap<(Locator, Locator), LatLon>,
     sun_grid: FxMap<(i32, i32, i64), f64>,
@@ -448,6 +450,13 @@ pub struct CoverageBuilder {
     next_expiry: Option<DateTime<Utc>>,
 }
 
+const NANOS_PER_MINUTE: i128 = 60_000_000_000;
+
+/// A time in nanoseconds since 1970 (exact for every `DateTime`).
+fn nanos(t: DateTime<Utc>) -> i128 {
+    i128::from(t.timestamp()) * 1_000_000_000 + i128::from(t.timestamp_subsec_nanos())
+}
+
 /// Log time between two passes over the pending records.
 const EXPIRY_STEP_MINUTES: i64 = 5;
 
@@ -461,6 +470,7 @@ impl CoverageBuilder {
             paths: PathCache::new(),
             pending: FxMap::default(),
             queue: VecDeque::new(),
+            linear: false,
             cells: FxMap::default(),
             midpoints: FxMap::default(),
             sun_grid: FxMap::default(),
@@ -514,6 +524,7 @@ impl CoverageBuilder {
             from,
             id: c.id,
             start: c.start,
+            at: nanos(c.start),
             band: c.band,
             outcome: c.outcome,
             rcvd: c.rcvd,
@@ -524,28 +535,53 @@ impl CoverageBuilder {
                 (c.to_locator, c.from_locator)
             },
             flagged: false,
+            matched: false,
         };
-        let tol = Duration::minutes(i64::from(self.config.tolerance_minutes));
+        let tol = i128::from(self.config.tolerance_minutes) * NANOS_PER_MINUTE;
         let list = self.pending.entry(link).or_default();
-        let matched = list.iter().position(|p| {
-            p.from != from && p.band == rec.band && (p.start - rec.start).abs() <= tol
-        });
+        // Records within the tolerance of this one: in order, they begin at `window`, and the
+        // scan can stop at the first record past the tolerance.
+        let window = list.first_at_or_after(rec.at - tol, self.linear);
+        let ordered = list.in_order && !self.linear;
+        let near = |p: &Pending| (p.at - rec.at).abs() <= tol;
+        let past = |p: &Pending| ordered && p.at - rec.at > tol;
+        let matched = list
+            .records
+            .range(window..)
+            .take_while(|p| !past(p))
+            .position(|p| !p.matched && p.from != from && p.band == rec.band && near(p))
+            .map(|i| window + i);
         if let Some(i) = matched {
-            let other = list.remove(i);
+            let other = &mut list.records[i];
+            other.matched = true;
+            let other = other.clone();
             self.pair(link, other, rec);
             return;
         }
         // Both claim a contact with each other at the same time, on different bands.
         if rec.outcome.made_contact()
-            && let Some(p) = list.iter_mut().find(|p| {
-                p.from != from
-                    && p.band != rec.band
-                    && p.outcome.made_contact()
-                    && !p.flagged
-                    && (p.start - rec.start).abs() <= tol
-            })
+            && let Some(p) = list
+                .records
+                .range_mut(window..)
+                .take_while(|p| !past(p))
+                .find(|p| {
+                    !p.matched
+                        && p.from != from
+                        && p.band != rec.band
+                        && p.outcome.made_contact()
+                        && !p.flagged
+                        && near(p)
+                })
         {
             p.flagged = true;
+            let mut rec = rec;
+            rec.flagged = true;
+            self.contradictions_total += 1;
+            if self.contradictions.len() >= MAX_CONTRADICTIONS {
+                self.queue.push_back((rec.start, link, rec.id));
+                list.push(rec);
+                return;
+            }
             let (a, b) = (
                 self.stations.calls[p.from as usize].clone(),
                 self.stations.calls[from as usize].clone(),
@@ -566,11 +602,9 @@ impl CoverageBuilder {
                 bands: [p.band, rec.band],
                 message: msg,
             };
-            let mut rec = rec;
-            rec.flagged = true;
             self.queue.push_back((rec.start, link, rec.id));
             list.push(rec);
-            self.contradiction(found);
+            self.contradictions.push(found);
             return;
         }
         self.queue.push_back((rec.start, link, rec.id));
@@ -579,7 +613,7 @@ impl CoverageBuilder {
 
     /// Finalises pending single records that can no longer be matched.
     fn expire(&mut self, before: DateTime<Utc>) {
-        let tol = Duration::minutes(i64::from(self.config.tolerance_minutes));
+        let tol = i128::from(self.config.tolerance_minutes) * NANOS_PER_MINUTE;
         let mut done = Vec::new();
         while let Some(&(t, link, id)) = self.queue.front() {
             if t >= before {
@@ -589,20 +623,44 @@ impl CoverageBuilder {
             let Some(list) = self.pending.get_mut(&link) else {
                 continue;
             };
-            // Already matched with the other side's record: nothing left to do.
-            let Some(i) = list.iter().position(|p| p.id == id) else {
+            // The record is at the front of its link's list (see `queue`); the search is only
+            // a safeguard.
+            let front = list.records.front().is_some_and(|p| p.id == id);
+            let Some(i) = (if front {
+                Some(0)
+            } else {
+                list.records.iter().position(|p| p.id == id)
+            }) else {
                 continue;
             };
-            let p = list.remove(i);
-            // A made contact that the other side logged too, but too far apart in time.
+            let Some(p) = list.records.remove(i) else {
+                continue;
+            };
+            if list.records.is_empty() {
+                list.in_order = true;
+            }
+            // Already matched with the other side's record: nothing left to do.
+            if p.matched {
+                continue;
+            }
+            // A made contact that the other side logged too, but too far apart in time. In
+            // order, the records after `p` start no earlier, so the candidates begin past the
+            // tolerance.
             let other = if p.outcome.made_contact() && !p.flagged {
-                list.iter_mut()
+                let from = if list.in_order && !self.linear && i == 0 {
+                    list.records.partition_point(|q| q.at - p.at <= tol)
+                } else {
+                    0
+                };
+                list.records
+                    .range_mut(from..)
                     .find(|q| {
-                        q.from != p.from
+                        !q.matched
+                            && q.from != p.from
                             && q.band == p.band
                             && q.outcome.made_contact()
                             && !q.flagged
-                            && (q.start - p.start).abs() > tol
+                            && (q.at - p.at).abs() > tol
                     })
                     .map(|q| {
                         q.flagged = true;
@@ -611,14 +669,13 @@ impl CoverageBuilder {
             } else {
                 None
             };
-            if list.is_empty() {
-                self.pending.remove(&link);
-            }
             done.push((link, p, other));
         }
         done.sort_by_key(|d| d.1.start);
         for (link, p, other) in done {
-            if let Some((qid, qt, qfrom)) = other {
+            if let Some((qid, qt, qfrom)) = other
+                && self.count_contradiction()
+            {
                 let (a, b) = (
                     self.stations.calls[p.from as usize].clone(),
                     self.stations.calls[qfrom as usize].clone(),
@@ -631,7 +688,7 @@ impl CoverageBuilder {
                     (qt - p.start).num_minutes().abs(),
                     self.config.tolerance_minutes
                 );
-                self.contradiction(Contradiction {
+                self.contradictions.push(Contradiction {
                     kind: ContradictionKind::Time,
                     a,
                     b,
@@ -645,11 +702,10 @@ impl CoverageBuilder {
         }
     }
 
-    fn contradiction(&mut self, c: Contradiction) {
+    /// Counts a contradiction; whether its details are still kept (so only then worth making).
+    fn count_contradiction(&mut self) -> bool {
         self.contradictions_total += 1;
-        if self.contradictions.len() < MAX_CONTRADICTIONS {
-            self.contradictions.push(c);
-        }
+        self.contradictions.len() < MAX_CONTRADICTIONS
     }
 
     fn single(&mut self, link: (u32, u32), p: Pending) {
@@ -680,7 +736,7 @@ impl CoverageBuilder {
             (Outcome::NoContact, Outcome::NoContact) => Outcome::NoContact,
             _ => Outcome::Partial,
         };
-        if contradiction {
+        if contradiction && self.count_contradiction() {
             let (claim, other) = if denies(&first, &second) {
                 (&first, &second)
             } else {
@@ -700,7 +756,7 @@ impl CoverageBuilder {
                 claim.start.format("%H:%M"),
                 other.start.format("%H:%M")
             );
-            self.contradiction(Contradiction {
+            self.contradictions.push(Contradiction {
                 kind: ContradictionKind::Outcome,
                 a,
                 b,
@@ -1067,4 +1123,60 @@ pub fn coverage(
         b.add(c);
     }
     Ok(b.finish(notes))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use proptest::prelude::*;
+    use uuid::Uuid;
+
+    /// One generated record: logging station, other station, minutes after the start (may go
+    /// backwards), band, outcome, whether a report was received.
+    type Rec = (usize, usize, i64, usize, usize, bool);
+
+    fn build(recs: &[Rec], linear: bool) -> Coverage {
+        const CALLS: [&str; 4] = ["Q1AA", "Q2BB", "Q3CC", "Q4DD"];
+        const GRIDS: [&str; 4] = ["JN58td", "JN48qm", "JO50ab", "JN68ax"];
+        let bands = [Band::B80m, Band::B40m];
+        let outcomes = [Outcome::Worked, Outcome::Partial, Outcome::NoContact];
+        let t0 = DateTime::<Utc>::from_timestamp(1_759_536_000, 0).unwrap_or_default();
+        let mut b = CoverageBuilder::new(CoverageConfig::default())
+            .unwrap_or_else(|e| panic!("default config refused: {e}"));
+        b.linear = linear;
+        let mut at = t0;
+        for (i, &(from, to, step, band, outcome, report)) in recs.iter().enumerate() {
+            at += Duration::seconds(step * 20);
+            b.add_sighting(&Sighting {
+                id: ContactId(Uuid::from_u64_pair(7, i as u64)),
+                from: CALLS[from],
+                from_locator: Locator::parse(GRIDS[from]).ok(),
+                to: CALLS[to],
+                to_locator: Locator::parse(GRIDS[to]).ok(),
+                start: at,
+                band: bands[band],
+                freq_hz: Some(if band == 0 { 3_600_000 } else { 7_100_000 }),
+                outcome: outcomes[outcome],
+                rcvd: report.then(|| Report::parse("57").ok()).flatten(),
+            });
+        }
+        b.finish(&[])
+    }
+
+    proptest! {
+        /// The windowed search over in-order pending records (where most records are) finds
+        /// exactly what a search over every pending record finds, with records out of order
+        /// mixed in.
+        #[test]
+        fn windowed_matching_equals_full_search(
+            recs in proptest::collection::vec(
+                (0..4usize, 0..4usize, -40..60i64, 0..2usize, 0..3usize, any::<bool>()),
+                0..300,
+            )
+        ) {
+            let fast = build(&recs, false);
+            let full = build(&recs, true);
+            prop_assert_eq!(fast, full);
+        }
+    }
 }

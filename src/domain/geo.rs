@@ -5,11 +5,10 @@
 //! km, bearings in degrees clockwise from true north in [0, 360). Between locators the centres
 //! are used, and the range the cells allow is given beside the centre figure.
 
-use std::collections::HashMap;
-
 use geographiclib_rs::{DirectGeodesic, Geodesic, InverseGeodesic};
 use serde::Serialize;
 
+use super::hashing::FxMap;
 use super::latlon::LatLon;
 use super::locator::Locator;
 
@@ -213,7 +212,7 @@ pub fn locator_path(a: &Locator, b: &Locator) -> LocatorPath {
 /// the same few hundred station pairs again and again; the geodesic is done once each.
 #[derive(Debug, Default)]
 pub struct PathCache {
-    centres: HashMap<(Locator, Locator), Path>,
+    centres: FxMap<(Locator, Locator), Path>,
 }
 
 impl PathCache {

@@ -28,6 +28,7 @@ pub use power::{Power, PowerError};
 pub use report::{Report, ReportError};
 pub use utc::{TimeError, parse_utc};
 pub mod geo;
+mod hashing;
 pub mod skywave;
 pub mod stats;
 pub mod sun;
