@@ -48,8 +48,9 @@ pub struct RawRecord {
     /// Things the reader tolerated in this record (text after a field, a missing `<EOR>`, …).
     pub warnings: Vec<String>,
     rejected: Option<RecordError>,
-    /// One bit per field-name hash: a name not in it is surely new (skips the comparisons).
-    seen: u64,
+    /// One bit per field-name hash (256 bits): a name whose bit is clear is surely new, so
+    /// the comparisons are skipped for nearly every field.
+    seen: [u64; 4],
 }
 
 impl RawRecord {
@@ -60,7 +61,7 @@ impl RawRecord {
         self.line = 0;
         self.warnings.clear();
         self.rejected = None;
-        self.seen = 0;
+        self.seen = [0; 4];
     }
 
     /// Makes the text readable as `str` (one check of the whole record), for a record that
@@ -147,18 +148,18 @@ impl RawRecord {
             value: v0..self.bytes.len(),
             line,
         });
-        self.seen |= name_bit(&self.bytes[n0..v0]);
+        let h = name_hash(&self.bytes[n0..v0]);
+        self.mark(h);
     }
 
     /// Adds a field from ASCII `NAME:LEN>VALUE` bytes: the name is the first `name_len` bytes
-    /// (made upper case here when it has `lower` case letters), the value starts at
-    /// `value_at`. One copy for the whole field.
+    /// (made upper case here when it has `lower` case letters; `hash` is its [`name_hash`]),
+    /// the value starts at `value_at`. One copy for the whole field.
     #[inline]
     fn push_tagged(
         &mut self,
         tagged: &[u8],
-        name_len: usize,
-        lower: bool,
+        (name_len, lower, hash): (usize, bool, u8),
         value_at: usize,
         line: u32,
     ) {
@@ -176,14 +177,25 @@ impl RawRecord {
             value: n0 + value_at..self.bytes.len(),
             line,
         });
-        self.seen |= name_bit(&self.bytes[n0..n0 + name_len]);
+        self.mark(hash);
+    }
+
+    #[inline]
+    fn mark(&mut self, hash: u8) {
+        self.seen[usize::from(hash >> 6)] |= 1 << (hash & 63);
     }
 
     /// Whether the record has a field of this name, given in any case.
     #[inline]
     fn has(&self, name: &[u8]) -> bool {
+        self.has_hashed(name, name_hash(name))
+    }
+
+    /// [`RawRecord::has`], with the name's [`name_hash`] given.
+    #[inline]
+    fn has_hashed(&self, name: &[u8], hash: u8) -> bool {
         let raw = self.raw();
-        self.seen & name_bit(name) != 0
+        self.seen[usize::from(hash >> 6)] & (1 << (hash & 63)) != 0
             && self
                 .fields
                 .iter()
@@ -197,11 +209,22 @@ impl RawRecord {
     }
 }
 
-/// The bit of a field name in a record's name filter (the same for any case).
-fn name_bit(b: &[u8]) -> u64 {
-    let up = |c: &u8| u64::from(c.to_ascii_uppercase());
-    let h = b.len() as u64 * 31 + b.first().map_or(0, up) * 7 + b.last().map_or(0, up);
-    1 << (h % 64)
+/// The bit of a field name in a record's name filter: FNV-1a over the bytes with the case bit
+/// cleared, so that any case of a name gives the same bit.
+fn name_hash(b: &[u8]) -> u8 {
+    name_hash_end(b.iter().fold(NAME_HASH_START, |h, c| name_hash_step(h, *c)))
+}
+
+const NAME_HASH_START: u32 = 0x811c_9dc5;
+
+#[inline]
+fn name_hash_step(h: u32, c: u8) -> u32 {
+    (h ^ u32::from(c & !0x20)).wrapping_mul(0x0100_0193)
+}
+
+#[inline]
+fn name_hash_end(h: u32) -> u8 {
+    (h >> 24) as u8
 }
 
 /// What a byte is in a field name the quick path reads: 0 not allowed, else [`NAME`], with
@@ -232,6 +255,46 @@ fn newlines(b: &[u8]) -> u32 {
         memchr::memchr_iter(b'\n', b).count()
     };
     n as u32
+}
+
+/// One pass over `buf[start..start + len]`: the number of line breaks when it is all ASCII,
+/// else `None`. Eight bytes at a time; the last word may read on past the value within `buf`,
+/// with the bytes beyond masked off; a word's bytes are counted one by one only when it holds
+/// a `\n`.
+fn ascii_newlines(buf: &[u8], start: usize, len: usize) -> Option<u32> {
+    const ONES: u64 = 0x0101_0101_0101_0101;
+    const HIGH: u64 = 0x8080_8080_8080_8080;
+    const NL: u64 = 0x0a0a_0a0a_0a0a_0a0a;
+    let word_at = |i: usize| -> Option<u64> {
+        let w: [u8; 8] = buf.get(i..i + 8)?.try_into().ok()?;
+        Some(u64::from_le_bytes(w))
+    };
+    let (mut high, mut lines) = (0u64, 0u32);
+    let mut add = |x: u64| {
+        high |= x;
+        // A zero byte of `x ^ NL` is a `\n` of `x` (exact for words without high bits).
+        let y = x ^ NL;
+        if y.wrapping_sub(ONES) & !y & HIGH != 0 {
+            lines += x.to_le_bytes().iter().filter(|b| **b == b'\n').count() as u32;
+        }
+    };
+    let end = start + len;
+    let mut i = start;
+    while i + 8 <= end {
+        add(word_at(i)?);
+        i += 8;
+    }
+    if i < end {
+        match word_at(i) {
+            Some(x) => add(x & (u64::MAX >> (64 - 8 * (end - i)))),
+            None => {
+                for b in buf.get(i..end)? {
+                    add(u64::from(*b));
+                }
+            }
+        }
+    }
+    (high & HIGH == 0).then_some(lines)
 }
 
 /// What the reader found next.
@@ -307,19 +370,16 @@ impl<R: Read> AdiReader<R> {
             }
             let old = self.buf.len();
             let want = CHUNK.max(n - (old - self.pos));
-            self.buf.resize(old + want, 0);
-            let got = loop {
-                match self.src.read(&mut self.buf[old..]) {
-                    Ok(k) => break k,
-                    Err(e) if e.kind() == io::ErrorKind::Interrupted => continue,
-                    Err(e) => {
-                        self.buf.truncate(old);
-                        return Err(e);
-                    }
+            // Reads straight into the spare capacity (no zeroing first), until `want` bytes
+            // or the end of the source.
+            let got = match (&mut self.src).take(want as u64).read_to_end(&mut self.buf) {
+                Ok(k) => k,
+                Err(e) => {
+                    self.buf.truncate(old);
+                    return Err(e);
                 }
             };
-            self.buf.truncate(old + got);
-            if got == 0 {
+            if got < want {
                 self.eof = true;
             }
         }
@@ -361,12 +421,14 @@ impl<R: Read> AdiReader<R> {
         // Letters, digits and `_`, noting whether any letter is lower case.
         let mut name_len = 0;
         let mut classes = 0;
+        let mut h = NAME_HASH_START;
         for b in &w[1..] {
             let c = NAME_CLASS[usize::from(*b)];
             if c == 0 {
                 break;
             }
             classes |= c;
+            h = name_hash_step(h, *b);
             name_len += 1;
         }
         let lower = classes & LOWER != 0;
@@ -400,20 +462,19 @@ impl<R: Read> AdiReader<R> {
         if len > MAX_FIELD_BYTES || rec.fields.len() >= MAX_FIELDS {
             return false;
         }
-        // One pass: is the value ASCII, and how many line breaks does it hold.
-        let (high, value_lines) = value.iter().fold((0u8, 0u32), |(high, n), b| {
-            (high | (b & 0x80), n + u32::from(*b == b'\n'))
-        });
-        if high != 0 {
+        let Some(value_lines) = ascii_newlines(buf, v0, value.len()) else {
             return false;
-        }
+        };
         // The tag's body and the value together: `NAME:LEN>VALUE`, all ASCII by now.
-        if rec.has(&w[1..1 + name_len]) {
+        let name = &w[1..1 + name_len];
+        let hash = name_hash_end(h);
+        if rec.has_hashed(name, hash) {
             return false;
         }
         let line = self.line + gap_lines;
         if len > 0 {
-            rec.push_tagged(&buf[i + 1..v0 + len], name_len, lower, v0 - (i + 1), line);
+            let tagged = &buf[i + 1..v0 + len];
+            rec.push_tagged(tagged, (name_len, lower, hash), v0 - (i + 1), line);
         }
         self.line = line + value_lines;
         self.pos = v0 + len;
@@ -842,6 +903,24 @@ mod tests {
     use proptest::prelude::Strategy as _;
 
     proptest::proptest! {
+        /// The word-at-a-time scan gives what a byte-by-byte count gives.
+        #[test]
+        fn ascii_newlines_counts_like_a_plain_loop(
+            v in proptest::collection::vec(proptest::prop_oneof![
+                proptest::strategy::Just(b'\n'),
+                proptest::strategy::Just(0x8a_u8),
+                0u8..=255,
+            ], 0..70)
+        ) {
+            let plain = v.is_ascii().then(|| v.iter().filter(|b| **b == b'\n').count() as u32);
+            // The value alone, and the value inside more text (the last word reads past it).
+            proptest::prop_assert_eq!(ascii_newlines(&v, 0, v.len()), plain);
+            let mut wider = vec![b'\n', 0x80];
+            wider.extend_from_slice(&v);
+            wider.extend_from_slice(b"\n\x80\n\n\x80\n\n\n");
+            proptest::prop_assert_eq!(ascii_newlines(&wider, 2, v.len()), plain);
+        }
+
         /// The quick path reads exactly what the general path reads, whatever the text
         /// (names in any case, type indicators, line breaks, non-ASCII, broken tags,
         /// duplicate fields, wrong lengths) and however the source hands it over.
