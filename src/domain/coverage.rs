@@ -436,6 +436,7 @@ pub struct CoverageBuilder {
     cells: FxMap<((u32, u32), Band, usize), Cell>,
     midpoints: FxMap<(Locator, Locator), LatLon>,
     sun_grid: FxMap<(i32, i32, i64), f64>,
+    sun_slots: FxMap<i64, sun::SunAt>,
     link_geo: FxMap<(u32, u32), (Option<Locator>, Option<Locator>)>,
     fc: Vec<FcTop>,
     bin_date: Vec<Option<DateTime<Utc>>>,
@@ -474,6 +475,7 @@ impl CoverageBuilder {
             cells: FxMap::default(),
             midpoints: FxMap::default(),
             sun_grid: FxMap::default(),
+            sun_slots: FxMap::default(),
             link_geo: FxMap::default(),
             fc: vec![FcTop::default(); bins],
             bin_date: vec![None; bins],
@@ -808,7 +810,10 @@ impl CoverageBuilder {
                 let mid = *self
                     .midpoints
                     .entry(if a <= b { (a, b) } else { (b, a) })
-                    .or_insert_with(|| super::geo::midpoint_along(a.centre(), &path, b.centre()));
+                    .or_insert_with(|| {
+                        let (ca, cb) = (self.paths.point(&a), self.paths.point(&b));
+                        super::geo::midpoint_along(ca, &path, cb)
+                    });
                 // The Sun at the midpoint, on a grid of 0.5° and 10 minutes: plenty for the
                 // reflection height, and computed once per grid cell.
                 let key = (
@@ -816,13 +821,18 @@ impl CoverageBuilder {
                     (mid.lon * 2.0).round() as i32,
                     o.start.timestamp().div_euclid(600),
                 );
+                let slots = &mut self.sun_slots;
                 let elev = *self.sun_grid.entry(key).or_insert_with(|| {
                     let at = LatLon {
                         lat: f64::from(key.0) / 2.0,
                         lon: f64::from(key.1) / 2.0,
                     };
-                    let t = DateTime::from_timestamp(key.2 * 600 + 300, 0).unwrap_or(o.start);
-                    sun::position(at, t).elevation_deg
+                    // What depends on the time alone, once per 10 minutes.
+                    let sun = slots.entry(key.2).or_insert_with(|| {
+                        let t = DateTime::from_timestamp(key.2 * 600 + 300, 0).unwrap_or(o.start);
+                        sun::SunAt::new(t)
+                    });
+                    sun.elevation_deg(at)
                 });
                 let h = default_height_km(elev);
                 let floor = Hop::new(d, h).critical_frequency_floor_mhz(f);
@@ -1068,19 +1078,15 @@ fn describe(c: &Coverage, bin: usize, daylight: Option<Daylight>, fc: Option<f64
         remarks.push("daytime absorption likely on 80 m".to_string());
     }
     // A skip zone: near links failing while far ones work, on one band.
+    let nearest = cfg.ring_labels().into_iter().next();
     for h in &rows {
         let near: Vec<&RingHour> = c
             .rings
             .iter()
-            .filter(|r| {
-                r.band == h.band && r.bin == bin && c.config.ring_labels().first() == Some(&r.ring)
-            })
+            .filter(|r| r.band == h.band && r.bin == bin && nearest.as_ref() == Some(&r.ring))
             .collect();
         let far_worked = c.rings.iter().any(|r| {
-            r.band == h.band
-                && r.bin == bin
-                && c.config.ring_labels().first() != Some(&r.ring)
-                && r.worked > 0
+            r.band == h.band && r.bin == bin && nearest.as_ref() != Some(&r.ring) && r.worked > 0
         });
         let near_failed =
             near.iter().map(|r| r.attempts).sum::<u32>() >= 2 && near.iter().all(|r| r.worked == 0);

@@ -105,7 +105,12 @@ pub fn midpoint_along(a: LatLon, p: &Path, b: LatLon) -> LatLon {
 /// problem, where [`locator_path`] also searches the cells' edges (thousands). For cells
 /// that overlap the direction is `SameSpot`, with no bearing.
 pub fn centre_path(a: &Locator, b: &Locator) -> Path {
-    let mut p = path(a.centre(), b.centre());
+    centre_path_from(a, b, a.centre(), b.centre())
+}
+
+/// [`centre_path`] with the two centres already known.
+fn centre_path_from(a: &Locator, b: &Locator, ca: LatLon, cb: LatLon) -> Path {
+    let mut p = path(ca, cb);
     if a.lies_in(b) || b.lies_in(a) {
         p.direction = Direction::SameSpot;
         p.bearing_deg = None;
@@ -213,6 +218,7 @@ pub fn locator_path(a: &Locator, b: &Locator) -> LocatorPath {
 #[derive(Debug, Default)]
 pub struct PathCache {
     centres: FxMap<(Locator, Locator), Path>,
+    points: FxMap<Locator, LatLon>,
 }
 
 impl PathCache {
@@ -228,10 +234,15 @@ impl PathCache {
         } else {
             ((*b, *a), true)
         };
-        let p = *self
-            .centres
-            .entry(key)
-            .or_insert_with(|| centre_path(&key.0, &key.1));
+        let p = match self.centres.get(&key) {
+            Some(p) => *p,
+            None => {
+                let (ca, cb) = (self.point(&key.0), self.point(&key.1));
+                let p = centre_path_from(&key.0, &key.1, ca, cb);
+                self.centres.insert(key, p);
+                p
+            }
+        };
         if flipped {
             Path {
                 bearing_deg: p.reverse_bearing_deg,
@@ -241,6 +252,11 @@ impl PathCache {
         } else {
             p
         }
+    }
+
+    /// The centre of a locator's cell, computed once per locator.
+    pub fn point(&mut self, l: &Locator) -> LatLon {
+        *self.points.entry(*l).or_insert_with(|| l.centre())
     }
 
     /// Number of distinct pairs computed so far.

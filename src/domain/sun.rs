@@ -98,12 +98,7 @@ fn declination_and_eot(t: f64) -> (f64, f64) {
 
 /// The Sun's geometric elevation and azimuth at a place and instant (steps 7–8).
 pub fn position(at: LatLon, t: DateTime<Utc>) -> SunPosition {
-    let (decl, eot) = declination_and_eot(julian_century(t));
-    let minutes = minutes_of_day(t);
-    let tst = (minutes + eot + 4.0 * at.lon).rem_euclid(1440.0);
-    let h = (tst / 4.0 - 180.0).to_radians();
-    let (lat, d) = (at.lat.to_radians(), decl.to_radians());
-    let cos_zen = (lat.sin() * d.sin() + lat.cos() * d.cos() * h.cos()).clamp(-1.0, 1.0);
+    let (h, lat, d, cos_zen) = SunAt::new(t).hour_angle_and_zenith(at);
     let elevation_deg = 90.0 - cos_zen.acos().to_degrees();
     let az = h
         .sin()
@@ -113,6 +108,41 @@ pub fn position(at: LatLon, t: DateTime<Utc>) -> SunPosition {
     SunPosition {
         elevation_deg,
         azimuth_deg: az.rem_euclid(360.0),
+    }
+}
+
+/// What the Sun's position at an instant depends on besides the place: for many places at one
+/// instant, computed once.
+#[derive(Debug, Clone, Copy)]
+pub struct SunAt {
+    decl_deg: f64,
+    eot_minutes: f64,
+    minutes: f64,
+}
+
+impl SunAt {
+    pub fn new(t: DateTime<Utc>) -> Self {
+        let (decl_deg, eot_minutes) = declination_and_eot(julian_century(t));
+        Self {
+            decl_deg,
+            eot_minutes,
+            minutes: minutes_of_day(t),
+        }
+    }
+
+    /// The elevation at a place: the same figure as [`position`] gives.
+    pub fn elevation_deg(&self, at: LatLon) -> f64 {
+        let (_, _, _, cos_zen) = self.hour_angle_and_zenith(at);
+        90.0 - cos_zen.acos().to_degrees()
+    }
+
+    /// Hour angle, latitude and declination (radians) and the cosine of the zenith angle.
+    fn hour_angle_and_zenith(&self, at: LatLon) -> (f64, f64, f64, f64) {
+        let tst = (self.minutes + self.eot_minutes + 4.0 * at.lon).rem_euclid(1440.0);
+        let h = (tst / 4.0 - 180.0).to_radians();
+        let (lat, d) = (at.lat.to_radians(), self.decl_deg.to_radians());
+        let cos_zen = (lat.sin() * d.sin() + lat.cos() * d.cos() * h.cos()).clamp(-1.0, 1.0);
+        (h, lat, d, cos_zen)
     }
 }
 
@@ -202,6 +232,20 @@ pub fn day(at: LatLon, date: NaiveDate) -> SunDay {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn one_instant_for_many_places_gives_the_same_elevations() {
+        let t = NaiveDate::from_ymd_opt(2026, 3, 20)
+            .unwrap()
+            .and_hms_opt(11, 35, 0)
+            .unwrap()
+            .and_utc();
+        let sun = SunAt::new(t);
+        for (lat, lon) in [(48.1, 11.6), (-33.9, 151.2), (69.6, 18.9), (0.0, -170.0)] {
+            let at = LatLon { lat, lon };
+            assert_eq!(sun.elevation_deg(at), position(at, t).elevation_deg);
+        }
+    }
 
     #[test]
     fn meeus_example_25a_declination() {
