@@ -3,6 +3,7 @@
 //!
 //! Run: `cargo bench --bench coverage`. Targets: 10,000 contacts < 20 ms; 1,000,000 < 0.5 s;
 //! memory bounded by links and bins (resident memory is printed after each size).
+//! `NEARSKY_BENCH_ONLY=10000` runs one size of logbook only.
 
 #[path = "common/mod.rs"]
 mod common;
@@ -26,6 +27,12 @@ fn main() {
         (1_000_000, 20),
         (1_000_000, 200),
     ] {
+        // NEARSKY_BENCH_ONLY=N runs the sizes of N contacts only (for profiling).
+        if let Ok(only) = std::env::var("NEARSKY_BENCH_ONLY")
+            && only.parse::<u64>().ok() != Some(contacts)
+        {
+            continue;
+        }
         let path = dir.join(format!("c{contacts}-s{stations}.db"));
         let book = build(&path, contacts, stations);
         // The floor: the same counts straight from SQLite.

@@ -166,6 +166,10 @@ impl Callsign {
 /// The base call of a call sign that was already checked (as stored): `EA8/Q3NET/P` →
 /// `Q3NET`, without allocating. Follows the same rules as [`Callsign::parse`].
 pub fn base_of(checked: &str) -> &str {
+    // Most calls have no `/` at all.
+    if !checked.as_bytes().contains(&b'/') {
+        return checked;
+    }
     let mut parts = checked.split('/');
     let first = parts.next().unwrap_or(checked);
     match (parts.next(), parts.next()) {

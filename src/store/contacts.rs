@@ -526,23 +526,44 @@ impl Logbook {
         mut f: impl FnMut(&crate::domain::coverage::Sighting<'_>),
     ) -> Result<()> {
         use crate::domain::callsign::base_of;
-        let mut stmt = self.conn.prepare(
-            "SELECT c.uuid, c.own_call, c.own_locator, c.call, c.locator, c.start_utc, c.band, c.freq_hz,
-                    c.outcome, c.rst_rcvd
-             FROM contact c LEFT JOIN drill d ON d.id = c.drill_id
-             WHERE (?1 IS NULL OR d.name = ?1) AND (?2 IS NULL OR c.band = ?2)
-               AND (?3 IS NULL OR c.start_utc >= ?3) AND (?4 IS NULL OR c.start_utc < ?4)
-               AND (?5 OR c.deleted = 0)
-             ORDER BY c.start_utc, c.id",
-        )?;
-        let mut rows = stmt.query(params![
-            q.drill,
-            q.band.map(Band::name),
-            q.from.map(ts),
-            q.until.map(ts),
-            q.include_deleted
-        ])?;
-        let text = |r: &Row<'_>, i: usize| -> rusqlite::Result<Option<String>> { r.get(i) };
+        // Only the conditions asked for, and the drill by id: SQLite then evaluates nothing
+        // per row that does not filter.
+        let mut sql = String::from(
+            "SELECT c.uuid, c.own_call, c.own_locator, c.call, c.locator, c.start_utc, c.band,
+                    c.freq_hz, c.outcome, c.rst_rcvd
+             FROM contact c WHERE 1",
+        );
+        let mut values: Vec<rusqlite::types::Value> = Vec::new();
+        if let Some(name) = &q.drill {
+            let id: Option<i64> = self
+                .conn
+                .prepare_cached("SELECT id FROM drill WHERE name = ?1")?
+                .query_row([name], |r| r.get(0))
+                .optional()?;
+            let Some(id) = id else {
+                return Ok(());
+            };
+            sql.push_str(" AND c.drill_id = ?");
+            values.push(id.into());
+        }
+        if let Some(band) = q.band {
+            sql.push_str(" AND c.band = ?");
+            values.push(band.name().to_string().into());
+        }
+        if let Some(from) = q.from {
+            sql.push_str(" AND c.start_utc >= ?");
+            values.push(ts(from).into());
+        }
+        if let Some(until) = q.until {
+            sql.push_str(" AND c.start_utc < ?");
+            values.push(ts(until).into());
+        }
+        if !q.include_deleted {
+            sql.push_str(" AND c.deleted = 0");
+        }
+        sql.push_str(" ORDER BY c.start_utc, c.id");
+        let mut stmt = self.conn.prepare(&sql)?;
+        let mut rows = stmt.query(params_from_iter(values))?;
         while let Some(r) = rows.next()? {
             let uuid = r.get_ref(0)?.as_str().unwrap_or("");
             let bad = |why: &str| StoreError::BadRow {
@@ -569,8 +590,11 @@ impl Logbook {
                 "none" => Outcome::NoContact,
                 o => return Err(bad(&format!("outcome `{o}`"))),
             };
-            let rcvd = text(r, 9)?
-                .map(|t| Report::parse(&t))
+            let rcvd = r
+                .get_ref(9)?
+                .as_str_or_null()
+                .map_err(|_| bad("report received"))?
+                .map(Report::parse)
                 .transpose()
                 .map_err(|e| bad(&format!("report received: {e}")))?;
             let s = crate::domain::coverage::Sighting {

@@ -425,6 +425,108 @@ mod tests {
         assert!(Logbook::open(&path).is_ok(), "reopens");
     }
 
+    /// The lean reader coverage uses selects the same contacts, in the same order, as the full
+    /// reader, for every filter: drill (also an unknown one), band, time range, deleted.
+    #[test]
+    fn the_coverage_reader_selects_what_the_full_reader_selects() {
+        use crate::domain::{
+            Band, Callsign, Contact, ContactId, ContactParts, Frequency, Locator, Mode, Outcome,
+            StationSnapshot,
+        };
+        use chrono::DateTime;
+        let mut book = Logbook::open_in_memory().unwrap();
+        for name in ["spring", "autumn"] {
+            book.add_drill(&Drill {
+                name: name.into(),
+                starts_at: None,
+                ends_at: None,
+                net_control: None,
+                description: String::new(),
+            })
+            .unwrap();
+        }
+        let t0 = DateTime::from_timestamp(1_759_536_000, 0).unwrap();
+        let bands = [(Band::B80m, 3_600_000), (Band::B40m, 7_100_000)];
+        let contacts: Vec<Contact> = (0..60u64)
+            .map(|i| {
+                let (band, hz) = bands[(i % 2) as usize];
+                Contact::new(ContactParts {
+                    id: ContactId(uuid::Uuid::from_u64_pair(9, i)),
+                    drill: [None, Some("spring".to_string()), Some("autumn".to_string())]
+                        [(i % 3) as usize]
+                        .clone(),
+                    own: StationSnapshot {
+                        call: Callsign::parse(["Q1AA", "Q2BB/P"][(i % 2) as usize]).unwrap(),
+                        operator: None,
+                        locator: Locator::parse("JN58td").ok(),
+                        power: None,
+                        antenna: None,
+                    },
+                    call: Callsign::parse(["Q3CC", "Q4DD"][(i / 2 % 2) as usize]).unwrap(),
+                    locator: Locator::parse("JN48qm").ok(),
+                    // Not in time order, so the order comes from the query.
+                    start: t0 + chrono::Duration::minutes(((i * 37) % 60) as i64 * 7),
+                    end: None,
+                    band,
+                    frequency: Frequency::from_hz(hz).ok(),
+                    mode: Mode::parse("LSB").unwrap(),
+                    sent: None,
+                    rcvd: None,
+                    other_power: None,
+                    outcome: [Outcome::Worked, Outcome::NoContact][(i / 3 % 2) as usize],
+                    via: None,
+                    note: String::new(),
+                    origin: crate::domain::Origin::LoggedHere,
+                })
+                .unwrap()
+            })
+            .collect();
+        book.add_contacts(&contacts).unwrap();
+        for c in contacts.iter().step_by(7) {
+            book.delete_contact(c.id, "test").unwrap();
+        }
+        let queries = [
+            ContactQuery::default(),
+            ContactQuery {
+                include_deleted: true,
+                ..ContactQuery::default()
+            },
+            ContactQuery {
+                drill: Some("spring".into()),
+                ..ContactQuery::default()
+            },
+            ContactQuery {
+                drill: Some("no such drill".into()),
+                ..ContactQuery::default()
+            },
+            ContactQuery {
+                band: Some(Band::B40m),
+                from: Some(t0 + chrono::Duration::minutes(60)),
+                until: Some(t0 + chrono::Duration::minutes(300)),
+                drill: Some("autumn".into()),
+                include_deleted: true,
+            },
+        ];
+        for q in &queries {
+            let mut full = Vec::new();
+            book.for_each_contact(q, |s| {
+                full.push((
+                    s.contact.id,
+                    s.contact.start,
+                    s.contact.own.call.base().to_string(),
+                ));
+                Ok(())
+            })
+            .unwrap();
+            let mut lean = Vec::new();
+            book.for_each_sighting(q, |s| lean.push((s.id, s.start, s.from.to_string())))
+                .unwrap();
+            assert_eq!(lean, full, "{q:?}");
+            let expect_some = q.drill.as_deref() != Some("no such drill");
+            assert_eq!(!full.is_empty(), expect_some, "{q:?}");
+        }
+    }
+
     #[test]
     fn schedules_replace_and_cover_minutes_across_midnight() {
         use crate::domain::Band;
