@@ -121,6 +121,34 @@ const COLUMNS: &str = "c.uuid, d.name, c.own_call, c.own_operator, c.own_locator
     c.submode, c.rst_sent, c.rst_rcvd, c.other_power_w, c.outcome, c.via, c.note, \
     c.origin_station, c.origin_file, c.revision, c.deleted, c.logged_at, c.id";
 
+/// The conditions of a query that asks for them, as ` AND …` clauses on `contact c` with their
+/// values: only what filters, so SQLite evaluates nothing else per row. The drill is given by
+/// its row id.
+fn filter_sql(q: &ContactQuery, drill_id: Option<i64>) -> (String, Vec<rusqlite::types::Value>) {
+    let mut sql = String::new();
+    let mut values: Vec<rusqlite::types::Value> = Vec::new();
+    if let Some(id) = drill_id {
+        sql.push_str(" AND c.drill_id = ?");
+        values.push(id.into());
+    }
+    if let Some(band) = q.band {
+        sql.push_str(" AND c.band = ?");
+        values.push(band.name().to_string().into());
+    }
+    if let Some(from) = q.from {
+        sql.push_str(" AND c.start_utc >= ?");
+        values.push(ts(from).into());
+    }
+    if let Some(until) = q.until {
+        sql.push_str(" AND c.start_utc < ?");
+        values.push(ts(until).into());
+    }
+    if !q.include_deleted {
+        sql.push_str(" AND c.deleted = 0");
+    }
+    (sql, values)
+}
+
 fn ts(t: DateTime<Utc>) -> i64 {
     t.timestamp()
 }
@@ -142,9 +170,9 @@ fn read_row_with(
     r: &Row<'_>,
     drills: Option<&HashMap<i64, String>>,
 ) -> rusqlite::Result<std::result::Result<(StoredContact, i64), StoreError>> {
-    let uuid: String = r.get(0)?;
+    let uuid: &str = r.get_ref(0)?.as_str().map_err(rusqlite::Error::from)?;
     let bad = |why: String| StoreError::BadRow {
-        uuid: uuid.clone(),
+        uuid: uuid.to_string(),
         why,
     };
     macro_rules! parse {
@@ -160,7 +188,7 @@ fn read_row_with(
             }
         }};
     }
-    let id = match Uuid::parse_str(&uuid) {
+    let id = match Uuid::parse_str(uuid) {
         Ok(u) => ContactId(u),
         Err(e) => return Ok(Err(bad(format!("uuid: {e}")))),
     };
@@ -495,21 +523,11 @@ impl Logbook {
             },
         };
         let columns = COLUMNS.replace("d.name", "c.drill_id");
-        let sql = format!(
-            "SELECT {columns} FROM contact c
-             WHERE (?1 IS NULL OR c.drill_id = ?1) AND (?2 IS NULL OR c.band = ?2)
-               AND (?3 IS NULL OR c.start_utc >= ?3) AND (?4 IS NULL OR c.start_utc < ?4)
-               AND (?5 OR c.deleted = 0)
-             ORDER BY c.start_utc, c.id"
-        );
+        let (filter, values) = filter_sql(q, drill_id);
+        let sql =
+            format!("SELECT {columns} FROM contact c WHERE 1{filter} ORDER BY c.start_utc, c.id");
         let mut stmt = self.conn.prepare(&sql)?;
-        let mut rows = stmt.query(params![
-            drill_id,
-            q.band.map(Band::name),
-            q.from.map(ts),
-            q.until.map(ts),
-            q.include_deleted
-        ])?;
+        let mut rows = stmt.query(params_from_iter(values))?;
         while let Some(r) = rows.next()? {
             let (c, _) = read_row_with(r, Some(&names))??;
             f(c)?;
@@ -526,42 +544,26 @@ impl Logbook {
         mut f: impl FnMut(&crate::domain::coverage::Sighting<'_>),
     ) -> Result<()> {
         use crate::domain::callsign::base_of;
-        // Only the conditions asked for, and the drill by id: SQLite then evaluates nothing
-        // per row that does not filter.
-        let mut sql = String::from(
+        let drill_id = match &q.drill {
+            None => None,
+            Some(name) => {
+                let id: Option<i64> = self
+                    .conn
+                    .prepare_cached("SELECT id FROM drill WHERE name = ?1")?
+                    .query_row([name], |r| r.get(0))
+                    .optional()?;
+                let Some(id) = id else {
+                    return Ok(());
+                };
+                Some(id)
+            }
+        };
+        let (filter, values) = filter_sql(q, drill_id);
+        let sql = format!(
             "SELECT c.uuid, c.own_call, c.own_locator, c.call, c.locator, c.start_utc, c.band,
                     c.freq_hz, c.outcome, c.rst_rcvd
-             FROM contact c WHERE 1",
+             FROM contact c WHERE 1{filter} ORDER BY c.start_utc, c.id"
         );
-        let mut values: Vec<rusqlite::types::Value> = Vec::new();
-        if let Some(name) = &q.drill {
-            let id: Option<i64> = self
-                .conn
-                .prepare_cached("SELECT id FROM drill WHERE name = ?1")?
-                .query_row([name], |r| r.get(0))
-                .optional()?;
-            let Some(id) = id else {
-                return Ok(());
-            };
-            sql.push_str(" AND c.drill_id = ?");
-            values.push(id.into());
-        }
-        if let Some(band) = q.band {
-            sql.push_str(" AND c.band = ?");
-            values.push(band.name().to_string().into());
-        }
-        if let Some(from) = q.from {
-            sql.push_str(" AND c.start_utc >= ?");
-            values.push(ts(from).into());
-        }
-        if let Some(until) = q.until {
-            sql.push_str(" AND c.start_utc < ?");
-            values.push(ts(until).into());
-        }
-        if !q.include_deleted {
-            sql.push_str(" AND c.deleted = 0");
-        }
-        sql.push_str(" ORDER BY c.start_utc, c.id");
         let mut stmt = self.conn.prepare(&sql)?;
         let mut rows = stmt.query(params_from_iter(values))?;
         while let Some(r) = rows.next()? {
