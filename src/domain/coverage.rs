@@ -951,14 +951,22 @@ impl CoverageBuilder {
                 }
             }
         }
-        links.sort_by(|x, y| match (x.distance_km, y.distance_km) {
-            (Some(a), Some(b)) => a
-                .total_cmp(&b)
-                .then_with(|| (&x.a, &x.b).cmp(&(&y.a, &y.b))),
-            (Some(_), None) => std::cmp::Ordering::Less,
-            (None, Some(_)) => std::cmp::Ordering::Greater,
-            (None, None) => (&x.a, &x.b).cmp(&(&y.a, &y.b)),
+        // By distance, then by the calls: the order is sorted by index and applied once, so
+        // that the (large) rows move once rather than at every step of the sort.
+        let mut order: Vec<usize> = (0..links.len()).collect();
+        order.sort_unstable_by(|&i, &j| {
+            let (x, y) = (&links[i], &links[j]);
+            match (x.distance_km, y.distance_km) {
+                (Some(a), Some(b)) => a
+                    .total_cmp(&b)
+                    .then_with(|| (&x.a, &x.b).cmp(&(&y.a, &y.b))),
+                (Some(_), None) => std::cmp::Ordering::Less,
+                (None, Some(_)) => std::cmp::Ordering::Greater,
+                (None, None) => (&x.a, &x.b).cmp(&(&y.a, &y.b)),
+            }
         });
+        let mut slots: Vec<Option<LinkRow>> = links.into_iter().map(Some).collect();
+        let links: Vec<LinkRow> = order.iter().filter_map(|&i| slots[i].take()).collect();
         // Net centre.
         let known: Vec<LatLon> = self
             .stations
