@@ -155,7 +155,7 @@ impl RawRecord {
     /// Adds a field from ASCII `NAME:LEN>VALUE` bytes: the name is the first `name_len` bytes
     /// (made upper case here when it has `lower` case letters; `hash` is its [`name_hash`]),
     /// the value starts at `value_at`. One copy for the whole field.
-    #[inline]
+    #[inline(always)]
     fn push_tagged(
         &mut self,
         tagged: &[u8],
@@ -192,7 +192,7 @@ impl RawRecord {
     }
 
     /// [`RawRecord::has`], with the name's [`name_hash`] given.
-    #[inline]
+    #[inline(always)]
     fn has_hashed(&self, name: &[u8], hash: u8) -> bool {
         let raw = self.raw();
         self.seen[usize::from(hash >> 6)] & (1 << (hash & 63)) != 0
@@ -209,42 +209,95 @@ impl RawRecord {
     }
 }
 
-/// The bit of a field name in a record's name filter: FNV-1a over the bytes with the case bit
-/// cleared, so that any case of a name gives the same bit.
+/// The bit of a field name in a record's name filter: a multiply-xor over the name's 8-byte
+/// words (the last one padded with zero bytes) with the case bit of every byte cleared, so
+/// that any case of a name gives the same bit. The quick path computes the same while it
+/// scans the name ([`scan_name`]).
 fn name_hash(b: &[u8]) -> u8 {
-    name_hash_end(b.iter().fold(NAME_HASH_START, |h, c| name_hash_step(h, *c)))
-}
-
-const NAME_HASH_START: u32 = 0x811c_9dc5;
-
-#[inline]
-fn name_hash_step(h: u32, c: u8) -> u32 {
-    (h ^ u32::from(c & !0x20)).wrapping_mul(0x0100_0193)
-}
-
-#[inline]
-fn name_hash_end(h: u32) -> u8 {
-    (h >> 24) as u8
-}
-
-/// What a byte is in a field name the quick path reads: 0 not allowed, else [`NAME`], with
-/// [`LOWER`] for a lower-case letter.
-const NAME: u8 = 1;
-const LOWER: u8 = 2;
-const NAME_CLASS: [u8; 256] = {
-    let mut t = [0u8; 256];
-    let mut b = 0;
-    while b < 256 {
-        let c = b as u8;
-        t[b] = match c {
-            b'A'..=b'Z' | b'0'..=b'9' | b'_' => NAME,
-            b'a'..=b'z' => NAME | LOWER,
-            _ => 0,
-        };
-        b += 1;
+    let mut h = NAME_HASH_START;
+    for c in b.chunks(8) {
+        let mut w = [0u8; 8];
+        w[..c.len()].copy_from_slice(c);
+        h = name_hash_step(h, u64::from_le_bytes(w));
     }
-    t
-};
+    name_hash_end(h, b.len())
+}
+
+const NAME_HASH_START: u64 = 0xcbf2_9ce4_8422_2325;
+
+#[inline(always)]
+fn name_hash_step(h: u64, word: u64) -> u64 {
+    (h ^ (word & !(ONES * 0x20))).wrapping_mul(0x0000_0100_0000_01b3)
+}
+
+#[inline(always)]
+fn name_hash_end(h: u64, len: usize) -> u8 {
+    ((h ^ len as u64).wrapping_mul(0x9e37_79b9_7f4a_7c15) >> 56) as u8
+}
+
+const ONES: u64 = 0x0101_0101_0101_0101;
+const HIGH: u64 = 0x8080_8080_8080_8080;
+
+/// An 8-byte little-endian word of `b` from `i`, if there are 8 bytes.
+#[inline]
+fn word_at(b: &[u8], i: usize) -> Option<u64> {
+    let w: [u8; 8] = b.get(i..i + 8)?.try_into().ok()?;
+    Some(u64::from_le_bytes(w))
+}
+
+/// The high bit of each byte of `x` (bytes below 0x80) that lies in `lo..=hi`.
+#[inline]
+fn bytes_in(x: u64, lo: u8, hi: u8) -> u64 {
+    let at_least_lo = x.wrapping_add(ONES * u64::from(0x80 - lo));
+    let above_hi = x.wrapping_add(ONES * u64::from(0x7f - hi));
+    at_least_lo & !above_hi & HIGH
+}
+
+/// A mask of the lowest `n` bytes of a word (`n` up to 8).
+#[inline(always)]
+fn first_bytes(n: usize) -> u64 {
+    const MASKS: [u64; 9] = {
+        let mut m = [0u64; 9];
+        let mut i = 1;
+        while i < 9 {
+            m[i] = (m[i - 1] << 8) | 0xff;
+            i += 1;
+        }
+        m
+    };
+    MASKS[n.min(8)]
+}
+
+/// The field name at the start of `b`, as the quick path reads it: the number of leading
+/// letters, digits and `_` (the run is cut at 72 bytes, longer than any name accepted),
+/// whether any is a lower-case letter, and the run's [`name_hash`]. Eight bytes at a time;
+/// `None` when `b` is too short to tell.
+#[inline(always)]
+fn scan_name(b: &[u8]) -> Option<(usize, bool, u8)> {
+    let mut lower = 0u64;
+    let mut h = NAME_HASH_START;
+    for k in 0..9 {
+        let x = word_at(b, 8 * k)?;
+        let ascii = !x & HIGH;
+        let low = bytes_in(x, b'a', b'z');
+        // `_`: a zero byte of `x ^ '_'`, found exactly byte by byte.
+        let y = x ^ (ONES * u64::from(b'_'));
+        let underscore = !(((y & !HIGH) + !HIGH) | y) & HIGH;
+        let name = (bytes_in(x, b'A', b'Z') | low | bytes_in(x, b'0', b'9') | underscore) & ascii;
+        let end = (!name & HIGH).trailing_zeros() as usize / 8;
+        // Lower-case letters before the end only.
+        let keep = first_bytes(end);
+        lower |= low & keep;
+        if end > 0 {
+            h = name_hash_step(h, x & keep);
+        }
+        if end < 8 {
+            let len = 8 * k + end;
+            return Some((len, lower != 0, name_hash_end(h, len)));
+        }
+    }
+    Some((72, lower != 0, name_hash_end(h, 72)))
+}
 
 /// Line breaks in `b`. Usually a field's worth of bytes: a plain count then beats setting up a
 /// search.
@@ -261,14 +314,9 @@ fn newlines(b: &[u8]) -> u32 {
 /// else `None`. Eight bytes at a time; the last word may read on past the value within `buf`,
 /// with the bytes beyond masked off; a word's bytes are counted one by one only when it holds
 /// a `\n`.
+#[inline(always)]
 fn ascii_newlines(buf: &[u8], start: usize, len: usize) -> Option<u32> {
-    const ONES: u64 = 0x0101_0101_0101_0101;
-    const HIGH: u64 = 0x8080_8080_8080_8080;
     const NL: u64 = 0x0a0a_0a0a_0a0a_0a0a;
-    let word_at = |i: usize| -> Option<u64> {
-        let w: [u8; 8] = buf.get(i..i + 8)?.try_into().ok()?;
-        Some(u64::from_le_bytes(w))
-    };
     let (mut high, mut lines) = (0u64, 0u32);
     let mut add = |x: u64| {
         high |= x;
@@ -281,12 +329,12 @@ fn ascii_newlines(buf: &[u8], start: usize, len: usize) -> Option<u32> {
     let end = start + len;
     let mut i = start;
     while i + 8 <= end {
-        add(word_at(i)?);
+        add(word_at(buf, i)?);
         i += 8;
     }
     if i < end {
-        match word_at(i) {
-            Some(x) => add(x & (u64::MAX >> (64 - 8 * (end - i)))),
+        match word_at(buf, i) {
+            Some(x) => add(x & first_bytes(end - i)),
             None => {
                 for b in buf.get(i..end)? {
                     add(u64::from(*b));
@@ -419,19 +467,9 @@ impl<R: Read> AdiReader<R> {
             return false;
         }
         // Letters, digits and `_`, noting whether any letter is lower case.
-        let mut name_len = 0;
-        let mut classes = 0;
-        let mut h = NAME_HASH_START;
-        for b in &w[1..] {
-            let c = NAME_CLASS[usize::from(*b)];
-            if c == 0 {
-                break;
-            }
-            classes |= c;
-            h = name_hash_step(h, *b);
-            name_len += 1;
-        }
-        let lower = classes & LOWER != 0;
+        let Some((name_len, lower, hash)) = scan_name(&w[1..]) else {
+            return false;
+        };
         if name_len == 0 || name_len > 64 || w.get(1 + name_len) != Some(&b':') {
             return false;
         }
@@ -467,7 +505,6 @@ impl<R: Read> AdiReader<R> {
         };
         // The tag's body and the value together: `NAME:LEN>VALUE`, all ASCII by now.
         let name = &w[1..1 + name_len];
-        let hash = name_hash_end(h);
         if rec.has_hashed(name, hash) {
             return false;
         }
@@ -480,6 +517,38 @@ impl<R: Read> AdiReader<R> {
         self.pos = v0 + len;
         self.line_pos = self.pos;
         true
+    }
+
+    /// Consumes an `<EOR>` (any case) that follows at once, after at most a few spaces or line
+    /// breaks: what the general path does with it, without its searches. Lines are counted
+    /// later, as for skipped text.
+    fn quick_eor(&mut self) -> bool {
+        let buf = &self.buf;
+        let mut i = self.pos;
+        while i < buf.len() && i < self.pos + 4 && buf[i].is_ascii_whitespace() {
+            i += 1;
+        }
+        match buf.get(i..i + 5) {
+            Some(tag) if tag.eq_ignore_ascii_case(b"<EOR>") => {
+                self.pos = i + 5;
+                true
+            }
+            _ => false,
+        }
+    }
+
+    /// At an `<EOR>`: the record, if it has anything. Fields before the first `<EOH>` or
+    /// `<EOR>` are a record when `<EOR>` comes first.
+    fn end_of_record(&mut self, rec: &mut RawRecord) -> Option<Next> {
+        self.header_done = true;
+        if rec.is_empty() && rec.rejected.is_none() {
+            return None;
+        }
+        rec.seal();
+        Some(match rec.rejected.take() {
+            Some(e) => Next::Rejected(e),
+            None => Next::Record,
+        })
     }
 
     /// Moves to the next `<`; false at the end of the source.
@@ -575,8 +644,16 @@ impl<R: Read> AdiReader<R> {
             }
         }
         loop {
-            if self.quick && self.quick_field(rec) {
-                continue;
+            if self.quick {
+                if self.quick_field(rec) {
+                    continue;
+                }
+                if self.quick_eor() {
+                    match self.end_of_record(rec) {
+                        Some(next) => return Ok(next),
+                        None => continue,
+                    }
+                }
             }
             if !self.seek_tag()? {
                 return Ok(self.finish(rec));
@@ -606,16 +683,9 @@ impl<R: Read> AdiReader<R> {
                 }
                 Tag::Eor => {
                     self.advance(used);
-                    // Fields before the first <EOH>-or-<EOR> are a record when <EOR> comes first.
-                    self.header_done = true;
-                    if rec.is_empty() && rec.rejected.is_none() {
-                        continue;
+                    if let Some(next) = self.end_of_record(rec) {
+                        return Ok(next);
                     }
-                    rec.seal();
-                    return Ok(match rec.rejected.take() {
-                        Some(e) => Next::Rejected(e),
-                        None => Next::Record,
-                    });
                 }
                 Tag::Field { name, len } => {
                     // Field names were checked to be printable ASCII in `parse_tag`.
@@ -903,6 +973,43 @@ mod tests {
     use proptest::prelude::Strategy as _;
 
     proptest::proptest! {
+        /// The word-at-a-time name scan finds the run of letters, digits and `_` that a plain
+        /// loop finds, and whether it holds a lower-case letter.
+        #[test]
+        fn scan_name_reads_like_a_plain_loop(
+            v in proptest::collection::vec(proptest::prop_oneof![
+                proptest::strategy::Just(b'_'),
+                proptest::strategy::Just(b':'),
+                b'A'..=b'Z',
+                b'a'..=b'z',
+                b'0'..=b'9',
+                0u8..=255,
+            ], 0..100)
+        ) {
+            let run = v.iter().take_while(|b| b.is_ascii_alphanumeric() || **b == b'_').count();
+            let plain = (run.min(72), v[..run.min(72)].iter().any(u8::is_ascii_lowercase));
+            // Short of whole words the scan may give up, but never answer wrongly.
+            if let Some((n, lower, _)) = scan_name(&v) {
+                proptest::prop_assert_eq!((n, lower), plain);
+            }
+            // With room to read: always the plain answer.
+            let mut padded = v.clone();
+            padded.extend_from_slice(&[b':'; 80]);
+            let run = padded.iter().take_while(|b| b.is_ascii_alphanumeric() || **b == b'_').count();
+            let n = run.min(72);
+            let expect = (n, padded[..n].iter().any(u8::is_ascii_lowercase), name_hash(&padded[..n]));
+            proptest::prop_assert_eq!(scan_name(&padded), Some(expect));
+        }
+
+        /// Any case of a name hashes alike.
+        #[test]
+        fn name_hash_ignores_case(name in "[A-Za-z0-9_]{1,70}") {
+            proptest::prop_assert_eq!(
+                name_hash(name.as_bytes()),
+                name_hash(name.to_ascii_uppercase().as_bytes())
+            );
+        }
+
         /// The word-at-a-time scan gives what a byte-by-byte count gives.
         #[test]
         fn ascii_newlines_counts_like_a_plain_loop(
