@@ -245,7 +245,9 @@ fn word_at(b: &[u8], i: usize) -> Option<u64> {
     Some(u64::from_le_bytes(w))
 }
 
-/// The high bit of each byte of `x` (bytes below 0x80) that lies in `lo..=hi`.
+/// The high bit of each byte of `x` that lies in `lo..=hi`. Exact for bytes below 0x80; a
+/// byte of 0x80 or more may carry into the bytes above it, so only the bytes before the first
+/// such byte can be trusted (all that [`scan_name`] uses).
 #[inline]
 fn bytes_in(x: u64, lo: u8, hi: u8) -> u64 {
     let at_least_lo = x.wrapping_add(ONES * u64::from(0x80 - lo));
