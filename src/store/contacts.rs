@@ -121,9 +121,9 @@ const COLUMNS: &str = "c.uuid, d.name, c.own_call, c.own_operator, c.own_locator
     c.submode, c.rst_sent, c.rst_rcvd, c.other_power_w, c.outcome, c.via, c.note, \
     c.origin_station, c.origin_file, c.revision, c.deleted, c.logged_at, c.id";
 
-/// The conditions of a query that asks for them, as ` AND …` clauses on `contact c` with their
-/// values: only what filters, so SQLite evaluates nothing else per row. The drill is given by
-/// its row id.
+/// The conditions of a query, as ` AND …` clauses on `contact c` with their values (bound in
+/// order to `?`): only what filters, so SQLite evaluates nothing else per row. The drill is
+/// given by its row id (see `query_drill`). Every reader of contacts filters through this.
 fn filter_sql(q: &ContactQuery, drill_id: Option<i64>) -> (String, Vec<rusqlite::types::Value>) {
     let mut sql = String::new();
     let mut values: Vec<rusqlite::types::Value> = Vec::new();
@@ -372,11 +372,24 @@ impl Logbook {
 
     /// The row id of the drill called `name`.
     pub(super) fn named_drill_id(tx: &rusqlite::Connection, name: &str) -> Result<i64> {
-        let mut stmt = tx.prepare_cached("SELECT id FROM drill WHERE name = ?1")?;
-        let id: Option<i64> = stmt.query_row([name], |r| r.get(0)).optional()?;
-        id.ok_or_else(|| StoreError::NotFound {
+        Self::find_drill_id(tx, name)?.ok_or_else(|| StoreError::NotFound {
             what: "drill",
             key: name.to_string(),
+        })
+    }
+
+    /// The row id of the drill called `name`, if there is one.
+    fn find_drill_id(conn: &rusqlite::Connection, name: &str) -> Result<Option<i64>> {
+        let mut stmt = conn.prepare_cached("SELECT id FROM drill WHERE name = ?1")?;
+        Ok(stmt.query_row([name], |r| r.get(0)).optional()?)
+    }
+
+    /// The drill filter of a query as a row id: `Ok(None)` for no drill filter, `Err(())`
+    /// inside for a drill that does not exist (nothing matches then).
+    fn query_drill(&self, q: &ContactQuery) -> Result<std::result::Result<Option<i64>, ()>> {
+        Ok(match &q.drill {
+            None => Ok(None),
+            Some(name) => Self::find_drill_id(&self.conn, name)?.map(Some).ok_or(()),
         })
     }
 
@@ -544,19 +557,8 @@ impl Logbook {
         mut f: impl FnMut(&crate::domain::coverage::Sighting<'_>),
     ) -> Result<()> {
         use crate::domain::callsign::base_of;
-        let drill_id = match &q.drill {
-            None => None,
-            Some(name) => {
-                let id: Option<i64> = self
-                    .conn
-                    .prepare_cached("SELECT id FROM drill WHERE name = ?1")?
-                    .query_row([name], |r| r.get(0))
-                    .optional()?;
-                let Some(id) = id else {
-                    return Ok(());
-                };
-                Some(id)
-            }
+        let Ok(drill_id) = self.query_drill(q)? else {
+            return Ok(());
         };
         let (filter, values) = filter_sql(q, drill_id);
         let sql = format!(
@@ -686,43 +688,19 @@ impl Logbook {
         limit: usize,
         after: Option<Cursor>,
     ) -> Result<(Vec<StoredContact>, Option<Cursor>)> {
-        let mut sql = format!(
-            "SELECT {COLUMNS} FROM contact c LEFT JOIN drill d ON d.id = c.drill_id WHERE 1 = 1"
-        );
-        let mut values: Vec<rusqlite::types::Value> = Vec::new();
-        let mut bind = |sql: &mut String, clause: &str, v: rusqlite::types::Value| {
-            values.push(v);
-            sql.push_str(&clause.replace('?', &format!("?{}", values.len())));
+        let Ok(drill_id) = self.query_drill(q)? else {
+            return Ok((Vec::new(), None));
         };
-        if let Some(d) = &q.drill {
-            bind(
-                &mut sql,
-                " AND c.drill_id = (SELECT id FROM drill WHERE name = ?)",
-                d.clone().into(),
-            );
-        }
-        if let Some(b) = q.band {
-            bind(&mut sql, " AND c.band = ?", b.name().to_string().into());
-        }
-        if let Some(f) = q.from {
-            bind(&mut sql, " AND c.start_utc >= ?", ts(f).into());
-        }
-        if let Some(u) = q.until {
-            bind(&mut sql, " AND c.start_utc < ?", ts(u).into());
-        }
-        if !q.include_deleted {
-            sql.push_str(" AND c.deleted = 0");
-        }
-        if let Some(cur) = after {
-            bind(&mut sql, " AND (c.start_utc < ?", cur.start.into());
-            bind(&mut sql, " OR (c.start_utc = ? ", cur.start.into());
-            bind(&mut sql, "AND c.id < ?))", cur.row.into());
-        }
-        bind(
-            &mut sql,
-            " ORDER BY c.start_utc DESC, c.id DESC LIMIT ?",
-            (limit as i64).into(),
+        let (filter, mut values) = filter_sql(q, drill_id);
+        let mut sql = format!(
+            "SELECT {COLUMNS} FROM contact c LEFT JOIN drill d ON d.id = c.drill_id WHERE 1{filter}"
         );
+        if let Some(cur) = after {
+            sql.push_str(" AND (c.start_utc < ? OR (c.start_utc = ? AND c.id < ?))");
+            values.extend([cur.start.into(), cur.start.into(), cur.row.into()]);
+        }
+        sql.push_str(" ORDER BY c.start_utc DESC, c.id DESC LIMIT ?");
+        values.push((limit as i64).into());
         let mut stmt = self.conn.prepare_cached(&sql)?;
         let rows = stmt.query_map(params_from_iter(values.iter()), read_row)?;
         let mut out = Vec::with_capacity(limit);
@@ -742,60 +720,24 @@ impl Logbook {
     /// How many contacts match (deleted ones only when asked). Counted from indexes: all
     /// matching rows, minus the deleted ones (a small partial index).
     pub fn count(&self, q: &ContactQuery) -> Result<u64> {
-        let drill = match &q.drill {
-            None => None,
-            Some(name) => {
-                let mut stmt = self
-                    .conn
-                    .prepare_cached("SELECT id FROM drill WHERE name = ?1")?;
-                match stmt.query_row([name], |r| r.get::<_, i64>(0)).optional()? {
-                    Some(id) => Some(id),
-                    None => return Ok(0),
-                }
-            }
+        let Ok(drill_id) = self.query_drill(q)? else {
+            return Ok(0);
         };
-        let mut conds: Vec<&str> = Vec::new();
-        let mut values: Vec<rusqlite::types::Value> = Vec::new();
-        if let Some(id) = drill {
-            conds.push("drill_id = ?");
-            values.push(id.into());
-        }
-        if let Some(b) = q.band {
-            conds.push("band = ?");
-            values.push(b.name().to_string().into());
-        }
-        if let Some(f) = q.from {
-            conds.push("start_utc >= ?");
-            values.push(ts(f).into());
-        }
-        if let Some(u) = q.until {
-            conds.push("start_utc < ?");
-            values.push(ts(u).into());
-        }
-        let numbered = |extra: Option<&str>| {
-            let mut all: Vec<String> = conds
-                .iter()
-                .enumerate()
-                .map(|(i, c)| c.replace('?', &format!("?{}", i + 1)))
-                .collect();
-            all.extend(extra.map(str::to_string));
-            if all.is_empty() {
-                String::new()
-            } else {
-                format!(" WHERE {}", all.join(" AND "))
-            }
+        let every = ContactQuery {
+            include_deleted: true,
+            ..q.clone()
         };
+        let (filter, values) = filter_sql(&every, drill_id);
         let count = |sql: String| -> Result<i64> {
             let mut stmt = self.conn.prepare_cached(&sql)?;
             Ok(stmt.query_row(params_from_iter(values.iter()), |r| r.get(0))?)
         };
-        let total = count(format!("SELECT count(*) FROM contact{}", numbered(None)))?;
+        let total = count(format!("SELECT count(*) FROM contact c WHERE 1{filter}"))?;
         let deleted = if q.include_deleted {
             0
         } else {
             count(format!(
-                "SELECT count(*) FROM contact{}",
-                numbered(Some("deleted = 1"))
+                "SELECT count(*) FROM contact c WHERE 1{filter} AND c.deleted = 1"
             ))?
         };
         Ok((total - deleted).max(0) as u64)
