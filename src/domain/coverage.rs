@@ -342,19 +342,10 @@ impl LinkPending {
     fn push(&mut self, rec: Pending) {
         match self.records.back() {
             None => self.in_order = true,
-            Some(last) if rec.start < last.start => self.in_order = false,
+            Some(last) if rec.at < last.at => self.in_order = false,
             Some(_) => {}
         }
         self.records.push_back(rec);
-    }
-
-    /// Where to begin looking for a live record that starts at or after `from` (ns).
-    fn first_at_or_after(&self, from: i128, linear: bool) -> usize {
-        if self.in_order && !linear {
-            self.records.partition_point(|p| p.at < from)
-        } else {
-            0
-        }
     }
 }
 
@@ -522,7 +513,7 @@ impl CoverageBuilder {
             self.next_expiry = Some(now + Duration::minutes(EXPIRY_STEP_MINUTES));
         }
         let link = (from.min(to), from.max(to));
-        let rec = Pending {
+        let mut rec = Pending {
             from,
             id: c.id,
             start: c.start,
@@ -543,8 +534,12 @@ impl CoverageBuilder {
         let list = self.pending.entry(link).or_default();
         // Records within the tolerance of this one: in order, they begin at `window`, and the
         // scan can stop at the first record past the tolerance.
-        let window = list.first_at_or_after(rec.at - tol, self.linear);
         let ordered = list.in_order && !self.linear;
+        let window = if ordered {
+            list.records.partition_point(|p| p.at < rec.at - tol)
+        } else {
+            0
+        };
         let near = |p: &Pending| (p.at - rec.at).abs() <= tol;
         let past = |p: &Pending| ordered && p.at - rec.at > tol;
         let matched = list
@@ -576,38 +571,32 @@ impl CoverageBuilder {
                 })
         {
             p.flagged = true;
-            let mut rec = rec;
             rec.flagged = true;
             self.contradictions_total += 1;
-            if self.contradictions.len() >= MAX_CONTRADICTIONS {
-                self.queue.push_back((rec.start, link, rec.id));
-                list.push(rec);
-                return;
+            // The details only while they are kept.
+            if self.contradictions.len() < MAX_CONTRADICTIONS {
+                let (a, b) = (
+                    self.stations.calls[p.from as usize].clone(),
+                    self.stations.calls[from as usize].clone(),
+                );
+                let msg = format!(
+                    "{a} logged {b} on {} at {}, {b} logged {a} on {} at {}",
+                    p.band,
+                    p.start.format("%H:%M"),
+                    rec.band,
+                    rec.start.format("%H:%M")
+                );
+                let found = Contradiction {
+                    kind: ContradictionKind::Band,
+                    a,
+                    b,
+                    ids: [p.id, rec.id],
+                    times: [p.start, rec.start],
+                    bands: [p.band, rec.band],
+                    message: msg,
+                };
+                self.contradictions.push(found);
             }
-            let (a, b) = (
-                self.stations.calls[p.from as usize].clone(),
-                self.stations.calls[from as usize].clone(),
-            );
-            let msg = format!(
-                "{a} logged {b} on {} at {}, {b} logged {a} on {} at {}",
-                p.band,
-                p.start.format("%H:%M"),
-                rec.band,
-                rec.start.format("%H:%M")
-            );
-            let found = Contradiction {
-                kind: ContradictionKind::Band,
-                a,
-                b,
-                ids: [p.id, rec.id],
-                times: [p.start, rec.start],
-                bands: [p.band, rec.band],
-                message: msg,
-            };
-            self.queue.push_back((rec.start, link, rec.id));
-            list.push(rec);
-            self.contradictions.push(found);
-            return;
         }
         self.queue.push_back((rec.start, link, rec.id));
         list.push(rec);
@@ -638,9 +627,6 @@ impl CoverageBuilder {
             let Some(p) = list.records.remove(i) else {
                 continue;
             };
-            if list.records.is_empty() {
-                list.in_order = true;
-            }
             // Already matched with the other side's record: nothing left to do.
             if p.matched {
                 continue;
