@@ -182,7 +182,8 @@ impl RawRecord {
 
     #[inline]
     fn mark(&mut self, hash: u8) {
-        self.seen[usize::from(hash >> 6)] |= 1 << (hash & 63);
+        let (word, bit) = filter_bit(hash);
+        self.seen[word] |= bit;
     }
 
     /// Whether the record has a field of this name, given in any case.
@@ -195,7 +196,8 @@ impl RawRecord {
     #[inline(always)]
     fn has_hashed(&self, name: &[u8], hash: u8) -> bool {
         let raw = self.raw();
-        self.seen[usize::from(hash >> 6)] & (1 << (hash & 63)) != 0
+        let (word, bit) = filter_bit(hash);
+        self.seen[word] & bit != 0
             && self
                 .fields
                 .iter()
@@ -221,6 +223,12 @@ fn name_hash(b: &[u8]) -> u8 {
         h = name_hash_step(h, u64::from_le_bytes(w));
     }
     name_hash_end(h, b.len())
+}
+
+/// Where a name's hash sits in the 256-bit filter: the word and the bit in it.
+#[inline(always)]
+fn filter_bit(hash: u8) -> (usize, u64) {
+    (usize::from(hash >> 6), 1 << (hash & 63))
 }
 
 const NAME_HASH_START: u64 = 0xcbf2_9ce4_8422_2325;
@@ -455,13 +463,8 @@ impl<R: Read> AdiReader<R> {
         if self.line_pos != self.pos {
             self.current_line();
         }
+        let (i, gap_lines) = self.short_gap();
         let buf = &self.buf;
-        let mut i = self.pos;
-        let mut gap_lines = 0;
-        while i < buf.len() && i < self.pos + 4 && buf[i].is_ascii_whitespace() {
-            gap_lines += u32::from(buf[i] == b'\n');
-            i += 1;
-        }
         let Some(w) = buf.get(i..i + MAX_TAG) else {
             return false;
         };
@@ -521,16 +524,24 @@ impl<R: Read> AdiReader<R> {
         true
     }
 
+    /// The end of the spaces and line breaks (at most 4) at `pos` that the quick paths step
+    /// over, and the line breaks among them.
+    #[inline(always)]
+    fn short_gap(&self) -> (usize, u32) {
+        let (buf, mut i, mut lines) = (&self.buf, self.pos, 0);
+        while i < buf.len() && i < self.pos + 4 && buf[i].is_ascii_whitespace() {
+            lines += u32::from(buf[i] == b'\n');
+            i += 1;
+        }
+        (i, lines)
+    }
+
     /// Consumes an `<EOR>` (any case) that follows at once, after at most a few spaces or line
     /// breaks: what the general path does with it, without its searches. Lines are counted
     /// later, as for skipped text.
     fn quick_eor(&mut self) -> bool {
-        let buf = &self.buf;
-        let mut i = self.pos;
-        while i < buf.len() && i < self.pos + 4 && buf[i].is_ascii_whitespace() {
-            i += 1;
-        }
-        match buf.get(i..i + 5) {
+        let (i, _) = self.short_gap();
+        match self.buf.get(i..i + 5) {
             Some(tag) if tag.eq_ignore_ascii_case(b"<EOR>") => {
                 self.pos = i + 5;
                 true
