@@ -3,7 +3,8 @@
 //!
 //! Run: `cargo bench --bench coverage`. Targets: 10,000 contacts < 20 ms; 1,000,000 < 0.5 s;
 //! memory bounded by links and bins (resident memory is printed after each size).
-//! `NEARSKY_BENCH_ONLY=10000` runs one size of logbook only.
+//! `NEARSKY_BENCH_ONLY=10000` runs one size of logbook only; `NEARSKY_BENCH_KEEP=1` keeps the
+//! generated logbooks in `target/bench-coverage`.
 
 #[path = "common/mod.rs"]
 mod common;
@@ -87,5 +88,8 @@ fn main() {
             rss
         );
     }
-    let _ = std::fs::remove_dir_all(&dir);
+    // NEARSKY_BENCH_KEEP keeps the generated logbooks (for looking at them with SQLite).
+    if std::env::var_os("NEARSKY_BENCH_KEEP").is_none() {
+        let _ = std::fs::remove_dir_all(&dir);
+    }
 }
