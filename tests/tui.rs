@@ -7,7 +7,7 @@ use std::process::Command;
 use std::time::Duration;
 
 use chrono::{TimeZone, Utc};
-use nearsky::app::ui::{AppState, Effect, Key};
+use nearsky::app::ui::{AppState, Effect, Key, Message, ReviewTab};
 use nearsky::domain::ContactId;
 use nearsky::store::{ContactQuery, Logbook};
 use nearsky::tui::{run_effect, snapshot, view};
@@ -125,6 +125,116 @@ fn the_heatmap_reads_without_colour() {
         numbers.chars().filter(|c| c.is_ascii_digit()).count() > 30,
         "{numbers}"
     );
+}
+
+/// The last line of a rendered screen (the key hints), without trailing blanks.
+fn hints_line(out: &str) -> String {
+    out.lines().last().unwrap_or("").trim_end().to_string()
+}
+
+#[test]
+fn nothing_is_cut_off_at_80_columns() {
+    let (mut book, mut s) = demo_state();
+    // The key hints of every screen fit: the same at 80 columns as at 160.
+    for k in [
+        Key::Ctrl('l'),
+        Key::Ctrl('r'),
+        Key::Ctrl('v'),
+        Key::Ctrl('g'),
+    ] {
+        press(&mut book, &mut s, k);
+        let (narrow, wide) = (render(&s, 80, 24, false), render(&s, 160, 24, false));
+        assert_eq!(hints_line(&narrow), hints_line(&wide), "{narrow}");
+        assert!(!hints_line(&narrow).is_empty());
+    }
+    press(&mut book, &mut s, Key::Ctrl('l'));
+    // The keys that switch screens are on the screen, not only in the help (the tab line,
+    // which a clock warning would cover; `now` here is before the release date).
+    s.clock_set_by_hand = true;
+    let log = render(&s, 80, 24, false);
+    assert!(
+        log.contains("Roll call ^R") && log.contains("Map ^G"),
+        "{log}"
+    );
+    // A message longer than a line takes two rows instead of losing its end.
+    let long = "time `2026-12-02 01:0525:99` is not a UTC time (examples: 2026-12-01 14:05, 2026-12-01T14:05:00Z, 14:05, 1405)";
+    s.message = Some(Message::Error(long.into()));
+    let out = render(&s, 80, 24, false);
+    let rows: Vec<&str> = out.lines().collect();
+    let shown = format!("{} {}", rows[21].trim_end(), rows[22].trim_end());
+    assert_eq!(shown, format!("error: {long}"), "{out}");
+    assert!(
+        rows[20].starts_with('└'),
+        "the body ends above the message: {out}"
+    );
+}
+
+#[test]
+fn the_recent_list_follows_the_pick_and_marks_the_day() {
+    let (mut book, mut s) = demo_state();
+    let out = render(&s, 80, 24, false);
+    assert!(
+        out.contains("UTC   call      band   RST"),
+        "column header: {out}"
+    );
+    // The demo's contacts are from today: no date line.
+    assert!(!out.contains("── 2025-10-05 ──"), "{out}");
+    // A day later, a date line heads them.
+    s.clock_offset = chrono::Duration::days(1);
+    s.clock_set_by_hand = true;
+    let out = render(&s, 80, 24, false);
+    assert!(out.contains("── 2025-10-05 ──"), "{out}");
+    press(&mut book, &mut s, Key::PageUp);
+    for _ in 0..40 {
+        press(&mut book, &mut s, Key::Down);
+    }
+    assert_eq!(s.recent_sel, Some(40));
+    let picked = &s.recent[40].contact;
+    let want = format!(
+        "{} {:<9} {:<4}",
+        picked.start.format("%H:%M"),
+        picked.call.as_str(),
+        picked.band.name()
+    );
+    let out = render(&s, 80, 24, false);
+    assert!(
+        out.contains(&want),
+        "the picked contact ({want}) is on the screen: {out}"
+    );
+    assert!(
+        !out.contains("── 2025-10-05 ──"),
+        "scrolled past the top: {out}"
+    );
+}
+
+#[test]
+fn the_plan_view_wraps_its_evidence_under_its_own_column() {
+    let (mut book, mut s) = demo_state();
+    press(&mut book, &mut s, Key::Ctrl('v'));
+    while s.review_tab != ReviewTab::Plan {
+        press(&mut book, &mut s, Key::Right);
+    }
+    let out = render(&s, 80, 24, false);
+    let body: Vec<&str> = out
+        .lines()
+        .filter_map(|l| l.strip_prefix('│').and_then(|l| l.strip_suffix('│')))
+        .collect();
+    assert!(body.len() > 5, "{out}");
+    let continued = body
+        .iter()
+        .filter(|l| l.starts_with(&" ".repeat(30)))
+        .count();
+    assert!(
+        continued > 0,
+        "long notes go on under the evidence column: {out}"
+    );
+    for l in &body[1..] {
+        let starts_hour = l.len() > 5 && l.as_bytes()[2] == b':';
+        assert!(
+            starts_hour || l.starts_with(' '),
+            "a line neither a bin nor a continuation: `{l}`"
+        );
+    }
 }
 
 #[test]

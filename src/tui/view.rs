@@ -57,11 +57,18 @@ pub fn outcome_glyph(o: Outcome) -> &'static str {
 /// Draws the whole screen.
 pub fn draw(f: &mut Frame, s: &AppState, now: DateTime<Utc>, theme: Theme) {
     let area = f.area();
+    // A message longer than the screen is wide takes a second row rather than being cut off.
+    let (text, _) = message_text(s, theme);
+    let message_rows = if text.chars().count() > usize::from(area.width) {
+        2
+    } else {
+        1
+    };
     let [status, banner, body, message, hints] = Layout::vertical([
         Constraint::Length(1),
         Constraint::Length(1),
         Constraint::Min(5),
-        Constraint::Length(1),
+        Constraint::Length(message_rows),
         Constraint::Length(1),
     ])
     .areas(area);
@@ -138,11 +145,12 @@ fn draw_banner(f: &mut Frame, area: Rect, s: &AppState, now: DateTime<Utc>, them
         );
         return;
     }
+    // Each screen with the key that opens it from anywhere.
     let tabs = [
-        (Screen::Log, "Log"),
-        (Screen::RollCall, "Roll call"),
-        (Screen::Review, "Review"),
-        (Screen::Map, "Map"),
+        (Screen::Log, "Log ^L"),
+        (Screen::RollCall, "Roll call ^R"),
+        (Screen::Review, "Review ^V"),
+        (Screen::Map, "Map ^G"),
     ];
     let mut spans = Vec::new();
     for (sc, name) in tabs {
@@ -158,7 +166,8 @@ fn draw_banner(f: &mut Frame, area: Rect, s: &AppState, now: DateTime<Utc>, them
     f.render_widget(Paragraph::new(Line::from(spans)), area);
 }
 
-fn draw_message(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
+/// The message line's text, as it will be shown, and its style.
+fn message_text(s: &AppState, theme: Theme) -> (String, Style) {
     let (text, style) = match &s.message {
         None => (String::new(), Style::new()),
         Some(Message::Info(t)) => (t.clone(), Style::new()),
@@ -168,8 +177,13 @@ fn draw_message(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
         ),
         Some(Message::Error(t)) => (format!("error: {t}"), bold().patch(theme.fg(Color::Red))),
     };
+    (visible(&text).into_owned(), style)
+}
+
+fn draw_message(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
+    let (text, style) = message_text(s, theme);
     f.render_widget(
-        Paragraph::new(visible(&text).into_owned()).style(style),
+        Paragraph::new(text).style(style).wrap(Wrap { trim: true }),
         area,
     );
 }
@@ -183,8 +197,7 @@ fn hints_for(s: &AppState) -> String {
             "Up/Down pick  e/Enter correct  d delete  Esc back to entry".into()
         }
         Screen::Log => {
-            "Enter save  Tab next  ^Y worked ^P partial ^N not heard  ^T note  PgUp list  ^R ^V ^G"
-                .into()
+            "Enter save  Tab next  ^Y worked  ^P partial  ^N not heard  ^T note  PgUp list".into()
         }
         Screen::RollCall => {
             "w worked  p partial  n not heard  b band  [ ] order  r again  Esc log".into()
@@ -271,10 +284,25 @@ fn draw_log(f: &mut Frame, area: Rect, s: &AppState, now: DateTime<Utc>, theme: 
             f.set_cursor_position((col, row));
         }
     }
+    // A header, then the contacts newest first, with a line where the UTC date changes (and
+    // at the top when the newest is not from today), scrolled so that the picked one shows.
+    let today = s.entry_time(now).date_naive();
     let mut rows = Vec::new();
-    let inner = right.height.saturating_sub(2) as usize;
-    for (i, r) in s.recent.iter().enumerate().take(inner) {
+    let mut picked_row = 0;
+    let mut last_date = Some(today);
+    for (i, r) in s.recent.iter().enumerate() {
         let c = &r.contact;
+        let date = c.start.date_naive();
+        if last_date != Some(date) {
+            rows.push(Line::from(Span::styled(
+                format!("── {} ──", date.format("%Y-%m-%d")),
+                Style::new().add_modifier(Modifier::DIM),
+            )));
+            last_date = Some(date);
+        }
+        if s.recent_sel == Some(i) {
+            picked_row = rows.len();
+        }
         let km = r
             .distance_km
             .map_or("    ".to_string(), |d| format!("{d:>4.0}"));
@@ -304,12 +332,19 @@ fn draw_log(f: &mut Frame, area: Rect, s: &AppState, now: DateTime<Utc>, theme: 
     if rows.is_empty() {
         rows.push(Line::from("no contacts yet"));
     }
-    let title = format!(
-        " Recent ({})  UTC call band  sent/rcvd  km brg ",
-        s.recent.len()
-    );
+    // Rows below the header.
+    let room = usize::from(right.height.saturating_sub(3)).max(1);
+    let skip = (picked_row + 1).saturating_sub(room);
+    let mut shown = vec![Line::from(Span::styled(
+        format!(
+            "{:<5} {:<9} {:<4} {} {:<7} {:>4} {:>3}",
+            "UTC", "call", "band", " ", "RST", "km", "brg"
+        ),
+        bold(),
+    ))];
+    shown.extend(rows.into_iter().skip(skip));
     f.render_widget(
-        Paragraph::new(Text::from(rows)).block(Block::bordered().title(title)),
+        Paragraph::new(Text::from(shown)).block(Block::bordered().title(" Recent contacts ")),
         right,
     );
 }
@@ -412,6 +447,8 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
     let band = s.shown_band();
     let bins = c.config.bins();
     let wide = body.width >= 5 + 3 * bins as u16 + 2;
+    // Inside the border.
+    let text_width = usize::from(body.width.saturating_sub(2));
     let mut lines: Vec<Line> = Vec::new();
     match s.review_tab {
         ReviewTab::Hours => {
@@ -530,14 +567,15 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                 let sun = e
                     .sun_elevation_deg
                     .map_or(String::new(), |x| format!(" [sun {x:.0} deg]"));
-                lines.push(Line::from(format!("{}{sun}", e.note)));
+                lines.extend(hanging(&format!("{}{sun}", e.note), text_width, 2));
                 for (t, b, st, text) in &e.operator_notes {
-                    lines.push(Line::from(format!(
+                    let note = format!(
                         "   note {} {st}{}: {}",
                         t.format("%H:%M"),
                         b.map_or(String::new(), |b| format!(" {b}")),
                         visible(text)
-                    )));
+                    );
+                    lines.extend(hanging(&note, text_width, 8));
                 }
             }
         }
@@ -549,14 +587,16 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
             for b in &plan.bins {
                 let n =
                     |x: Option<crate::domain::Band>| x.map_or("-".to_string(), |b| b.to_string());
-                lines.push(Line::from(format!(
+                // The evidence wraps under its own column.
+                let row = format!(
                     "{:<6}{:<8}{:<10}{:>4}  {}",
                     b.hour_start,
                     n(b.primary),
                     n(b.alternate),
                     b.attempts,
                     b.note
-                )));
+                );
+                lines.extend(hanging(&row, text_width, 30));
             }
             if !plan.relays.is_empty() {
                 lines.push(Line::from(""));
@@ -566,7 +606,7 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                 )));
                 for r in &plan.relays {
                     let cands = r.candidates_text(3);
-                    lines.push(Line::from(format!(
+                    let row = format!(
                         "{} {}-{} {}: {}",
                         r.hour_start,
                         r.a,
@@ -577,20 +617,56 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                         } else {
                             cands
                         }
-                    )));
+                    );
+                    lines.extend(hanging(&row, text_width, 6));
                 }
             }
         }
     }
     let scroll = (s.review_scroll as u16).min(lines.len().saturating_sub(1) as u16);
-    let wrap = matches!(s.review_tab, ReviewTab::Evidence | ReviewTab::Plan);
-    let mut p = Paragraph::new(Text::from(lines))
+    let p = Paragraph::new(Text::from(lines))
         .scroll((scroll, 0))
         .block(Block::bordered().title(format!(" Review: {} ", s.review_tab.title())));
-    if wrap {
-        p = p.wrap(Wrap { trim: false });
-    }
     f.render_widget(p, body);
+}
+
+/// `text` broken at spaces into lines of at most `width` characters, every line after the
+/// first indented by `indent` spaces (a word longer than a line is cut).
+fn hanging(text: &str, width: usize, indent: usize) -> Vec<Line<'static>> {
+    let width = width.max(indent + 10);
+    let mut out = Vec::new();
+    let mut line = String::new();
+    // Characters in `line`, and whether no word has been put on it yet.
+    let (mut len, mut fresh) = (0, true);
+    for word in text.split(' ') {
+        if !fresh {
+            if len + 1 + word.chars().count() > width {
+                out.push(Line::from(std::mem::take(&mut line)));
+                line = " ".repeat(indent);
+                len = indent;
+            } else {
+                line.push(' ');
+                len += 1;
+            }
+        }
+        let mut rest = word;
+        while len + rest.chars().count() > width {
+            let cut = rest
+                .char_indices()
+                .nth(width - len)
+                .map_or(rest.len(), |(i, _)| i);
+            line.push_str(&rest[..cut]);
+            rest = &rest[cut..];
+            out.push(Line::from(std::mem::take(&mut line)));
+            line = " ".repeat(indent);
+            len = indent;
+        }
+        line.push_str(rest);
+        len += rest.chars().count();
+        fresh = false;
+    }
+    out.push(Line::from(line));
+    out
 }
 
 fn short_ruler(bins: usize) -> String {
