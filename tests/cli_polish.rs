@@ -142,3 +142,49 @@ fn the_config_file_fills_in_and_flags_win() {
     assert_eq!(code, 2);
     assert!(err.contains("config.toml: power_w: power `-3 W`"), "{err}");
 }
+
+#[test]
+fn a_reader_that_stops_early_is_not_an_error() {
+    // `nearsky export | head -1`: the pipe closes under the writer.
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    let (code, _, err) = run(&["--db", d, "demo", "--no-ui"], &[]);
+    assert_eq!(code, 0, "{err}");
+    let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_nearsky"))
+        .args(["--db", d, "export", "--format", "csv", "--include-attempts"])
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    // Read one line, then close the pipe.
+    let mut stdout = std::io::BufReader::new(child.stdout.take().unwrap());
+    let mut first = String::new();
+    std::io::BufRead::read_line(&mut stdout, &mut first).unwrap();
+    assert!(first.starts_with("id,drill,"), "{first}");
+    drop(stdout);
+    let out = child.wait_with_output().unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(0), "{err}");
+    assert!(!err.contains("Broken pipe"), "{err}");
+}
+
+#[test]
+fn an_error_and_its_cause_are_not_said_twice() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    run(&["--db", d, "demo", "--no-ui"], &[]);
+    let missing = dir.path().join("no/such/dir/x.adi");
+    for args in [
+        vec!["export", "-o", missing.to_str().unwrap()],
+        vec!["import", missing.to_str().unwrap()],
+    ] {
+        let mut all = vec!["--db", d];
+        all.extend(args);
+        let (code, _, err) = run(&all, &[]);
+        assert_eq!(code, 1, "{err}");
+        assert!(err.contains("x.adi"), "{err}");
+        assert_eq!(err.matches("No such file").count(), 1, "{err}");
+    }
+}

@@ -70,17 +70,33 @@ pub fn main() -> ExitCode {
     let cli = Cli::parse();
     match run(cli) {
         Ok(()) => ExitCode::from(exit::OK),
+        // The reader of the output went away (`nearsky export | head`): not an error.
+        Err(CliError::Failure(e)) if broken_pipe(&e) => ExitCode::from(exit::OK),
         Err(e) => {
             let mut err = std::io::stderr().lock();
-            let _ = writeln!(err, "nearsky: {e}");
+            let mut shown = e.to_string();
+            let _ = writeln!(err, "nearsky: {shown}");
             if let CliError::Failure(inner) = &e {
+                // Causes not already said by the message above them.
                 for cause in inner.chain().skip(1) {
-                    let _ = writeln!(err, "  because: {cause}");
+                    let cause = cause.to_string();
+                    if !shown.contains(&cause) {
+                        let _ = writeln!(err, "  because: {cause}");
+                    }
+                    shown = cause;
                 }
             }
             ExitCode::from(e.code())
         }
     }
+}
+
+/// Whether an error comes from writing to a pipe whose reader has closed it.
+fn broken_pipe(e: &anyhow::Error) -> bool {
+    e.chain().any(|c| {
+        c.downcast_ref::<std::io::Error>()
+            .is_some_and(|io| io.kind() == std::io::ErrorKind::BrokenPipe)
+    })
 }
 
 fn run(cli: Cli) -> Result<(), CliError> {
