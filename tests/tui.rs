@@ -445,3 +445,34 @@ fn the_binary_in_tmux_logs_what_is_typed_and_survives_sigkill() {
     assert!(page.iter().any(|c| c.contact.call.as_str() == "Q4SHL"
         && c.contact.rcvd.map(|r| r.to_string()) == Some("57".into())));
 }
+
+#[test]
+fn a_new_logbook_asks_for_the_own_station_and_then_logs() {
+    let mut book = Logbook::open_in_memory().unwrap();
+    let mut s = AppState::new(snapshot(&book, now()).unwrap());
+    for c in "Q4SHL".chars() {
+        press(&mut book, &mut s, Key::Char(c));
+    }
+    press(&mut book, &mut s, Key::Enter);
+    let out = render(&s, 80, 24, false);
+    assert!(out.contains("Own station: call sign and locator"), "{out}");
+    for c in "Q3NET JN17ga".chars() {
+        press(&mut book, &mut s, Key::Char(c));
+    }
+    press(&mut book, &mut s, Key::Enter);
+    let own = book.current_station().unwrap().unwrap();
+    assert_eq!(own.call.as_str(), "Q3NET");
+    let out = render(&s, 80, 24, false);
+    assert!(out.contains("Q3NET JN17ga"), "status line: {out}");
+    // The contact typed before is still in the form; mode and band, then Enter.
+    s.entry.values[4] = "40m".into();
+    s.entry.values[5] = "SSB".into();
+    press(&mut book, &mut s, Key::Enter);
+    assert_eq!(count_in(&book), 1, "{:?}", s.message);
+    let out = render(&s, 80, 24, false);
+    assert!(out.contains("1 contact |"), "{out}");
+}
+
+fn count_in(book: &Logbook) -> u64 {
+    book.count(&ContactQuery::default()).unwrap()
+}

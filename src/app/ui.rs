@@ -239,6 +239,9 @@ pub enum Prompt {
     SetClock(String),
     /// The report received in a roll call answered "worked".
     Report { roster: usize, text: String },
+    /// The own station's call sign and locator, asked for at the first save into a logbook
+    /// that has none yet.
+    Station(String),
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -272,6 +275,12 @@ pub enum Effect {
     Reload,
     /// Compute coverage and plan for the review screens.
     LoadReview,
+    /// Make this the own station, at `locator` from `at` on.
+    SetStation {
+        call: Callsign,
+        locator: Locator,
+        at: DateTime<Utc>,
+    },
     SaveRosterOrder(Vec<Callsign>),
 }
 
@@ -286,6 +295,7 @@ pub enum Done {
     Edited(ContactId),
     Deleted(ContactId),
     Noted,
+    StationSet(Callsign, Locator),
     Failed(String),
     Loaded(Box<Snapshot>),
     Review(Box<(Coverage, Plan)>),
@@ -556,6 +566,15 @@ impl AppState {
         Some(format!("{name} {path}").trim().to_string())
     }
 
+    /// Asks for the own station (nothing can be saved without it).
+    fn ask_station(&mut self) -> Update {
+        self.prompt = Some(Prompt::Station(String::new()));
+        self.message = Some(Message::Info(
+            "no own station yet: type your call sign and locator, e.g. Q3NET JN17ga".into(),
+        ));
+        Update::redraw()
+    }
+
     fn build_contact(&mut self, now: DateTime<Utc>, id: ContactId) -> Result<Contact, String> {
         let Some(own) = self.own_snapshot() else {
             return Err("no own station yet: set it with `nearsky station set` first".into());
@@ -632,6 +651,12 @@ impl AppState {
             Done::Noted => {
                 self.message = Some(Message::Info("propagation note saved".into()));
                 Update::redraw()
+            }
+            Done::StationSet(call, locator) => {
+                self.message = Some(Message::Info(format!(
+                    "own station {call} at {locator}; Enter saves the contact"
+                )));
+                Update::with(Effect::Reload)
             }
             Done::Failed(e) => {
                 self.message = Some(Message::Error(format!("not saved: {e}")));
@@ -727,7 +752,7 @@ impl AppState {
             return Update::default();
         };
         let text = match p {
-            Prompt::Note(t) | Prompt::SetClock(t) => t,
+            Prompt::Note(t) | Prompt::SetClock(t) | Prompt::Station(t) => t,
             Prompt::Reason { text, .. } | Prompt::Report { text, .. } => text,
         };
         match k {
@@ -775,6 +800,18 @@ impl AppState {
                 Err(e) => {
                     self.message = Some(Message::Error(e.to_string()));
                     self.prompt = Some(Prompt::SetClock(t));
+                    Update::redraw()
+                }
+            },
+            Prompt::Station(t) => match own_station(&t) {
+                Ok((call, locator)) => Update::with(Effect::SetStation {
+                    call,
+                    locator,
+                    at: self.entry_time(now),
+                }),
+                Err(e) => {
+                    self.message = Some(Message::Error(e));
+                    self.prompt = Some(Prompt::Station(t));
                     Update::redraw()
                 }
             },
@@ -856,6 +893,9 @@ impl AppState {
                         "call: type the other station's call first".into(),
                     ));
                     return Update::redraw();
+                }
+                if self.data.station.is_none() {
+                    return self.ask_station();
                 }
                 let id = self.entry.editing.unwrap_or_else(&mut *new_id);
                 return match self.build_contact(now, id) {
@@ -977,10 +1017,7 @@ impl AppState {
             return Update::default();
         };
         let Some(own) = self.own_snapshot() else {
-            self.message = Some(Message::Error(
-                "no own station yet: set it with `nearsky station set` first".into(),
-            ));
-            return Update::redraw();
+            return self.ask_station();
         };
         let ch = self.data.channels.iter().find(|c| c.band == self.roll_band);
         let mode = ch
@@ -1157,6 +1194,19 @@ fn next_band(b: Band, step: i32) -> Band {
     bands[((i + step).rem_euclid(3)) as usize]
 }
 
+/// `CALL LOCATOR`, as typed at the own-station prompt.
+fn own_station(text: &str) -> Result<(Callsign, Locator), String> {
+    let mut words = text.split_whitespace();
+    let (Some(call), Some(locator), None) = (words.next(), words.next(), words.next()) else {
+        return Err(format!(
+            "own station `{text}`: type the call sign and the locator, e.g. Q3NET JN17ga"
+        ));
+    };
+    let call = Callsign::parse(call).map_err(|e| format!("own station: {e}"))?;
+    let locator = Locator::parse(locator).map_err(|e| format!("own station: {e}"))?;
+    Ok((call, locator))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -1196,6 +1246,55 @@ mod tests {
         for c in text.chars() {
             s.key(Key::Char(c), now(), &mut id);
         }
+    }
+
+    #[test]
+    fn a_logbook_without_an_own_station_asks_for_it_at_the_first_save() {
+        let mut s = AppState::new(Snapshot {
+            station: None,
+            locator: None,
+            ..snapshot()
+        });
+        let mut id = || ContactId(uuid::Uuid::from_u128(9));
+        typed(&mut s, "Q4SHL");
+        let u = s.key(Key::Enter, now(), &mut id);
+        assert!(u.effects.is_empty());
+        assert_eq!(s.prompt, Some(Prompt::Station(String::new())));
+        // A bad answer keeps the prompt and says what is wrong.
+        typed(&mut s, "Q3NET JN17");
+        for _ in 0.."JN17".len() {
+            s.key(Key::Backspace, now(), &mut id);
+        }
+        typed(&mut s, "XX99");
+        s.key(Key::Enter, now(), &mut id);
+        assert_eq!(s.prompt, Some(Prompt::Station("Q3NET XX99".into())));
+        assert!(
+            matches!(&s.message, Some(Message::Error(e)) if e.contains("XX99")),
+            "{:?}",
+            s.message
+        );
+        for _ in 0.."XX99".len() {
+            s.key(Key::Backspace, now(), &mut id);
+        }
+        typed(&mut s, "jn17ga");
+        let u = s.key(Key::Enter, now(), &mut id);
+        assert_eq!(
+            u.effects,
+            vec![Effect::SetStation {
+                call: Callsign::parse("Q3NET").unwrap(),
+                locator: Locator::parse("JN17ga").unwrap(),
+                at: now(),
+            }]
+        );
+        assert_eq!(s.prompt, None);
+        // What was typed for the contact is still there.
+        assert_eq!(s.entry.get(Field::Call), "Q4SHL");
+        assert_eq!(
+            own_station("Q3NET"),
+            Err(
+                "own station `Q3NET`: type the call sign and the locator, e.g. Q3NET JN17ga".into()
+            )
+        );
     }
 
     #[test]

@@ -59,7 +59,7 @@ static TABLE: LazyLock<ModeTable> = LazyLock::new(|| {
 /// Why a mode or submode was refused.
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 pub enum ModeError {
-    #[error("mode is empty")]
+    #[error("mode is empty (examples: SSB, USB, CW, FT8, OLIVIA, PSK31)")]
     Empty,
     #[error("mode `{0}` is not an ADIF mode (examples: SSB, USB, CW, FT8, OLIVIA, PSK31)")]
     Unknown(String),

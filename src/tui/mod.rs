@@ -18,7 +18,7 @@ use crate::app::ui::{AppState, Done, Effect, Key, Snapshot};
 use crate::domain::ContactId;
 use crate::domain::coverage::CoverageConfig;
 use crate::domain::plan::{PlanConfig, make_plan};
-use crate::store::{ContactQuery, Logbook, Note, StoreError};
+use crate::store::{ContactQuery, Logbook, Note, StationProfile, StoreError};
 
 /// How many recent contacts the log screen keeps.
 const RECENT: usize = 200;
@@ -112,6 +112,19 @@ pub fn run_effect(book: &mut Logbook, e: Effect, now: DateTime<Utc>) -> Done {
             Err(e) => fail(e),
         },
         Effect::LoadReview => review(book),
+        Effect::SetStation { call, locator, at } => {
+            let p = StationProfile {
+                call: call.clone(),
+                operator: None,
+                usual_power: None,
+                antenna: None,
+                rig: None,
+            };
+            match book.set_station(&p, Some((locator, at))) {
+                Ok(()) => Done::StationSet(call, locator),
+                Err(e) => fail(e),
+            }
+        }
         Effect::SaveRosterOrder(calls) => match book.roster_reorder(&calls) {
             Ok(()) => Done::Noted,
             Err(e) => fail(e),

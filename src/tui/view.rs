@@ -123,9 +123,14 @@ fn draw_status(f: &mut Frame, area: Rect, s: &AppState, now: DateTime<Utc>) {
         .map_or(String::new(), |b| format!(" | sched {b}"));
     let clock = if s.clock_set_by_hand { "*" } else { "" };
     let fixed = format!(
-        "{}{clock} UTC{local} | {own}{sched} | {} contacts | ",
+        "{}{clock} UTC{local} | {own}{sched} | {} {} | ",
         t.format("%H:%M:%S"),
-        s.data.count
+        s.data.count,
+        if s.data.count == 1 {
+            "contact"
+        } else {
+            "contacts"
+        }
     );
     let room = (area.width as usize).saturating_sub(fixed.chars().count());
     let drill: String = drill.chars().take(room).collect();
@@ -827,6 +832,7 @@ fn draw_prompt(f: &mut Frame, area: Rect, p: &Prompt) {
         Prompt::Reason { text, .. } => ("Why is this contact deleted?", text),
         Prompt::SetClock(t) => ("UTC time now (YYYY-MM-DD HH:MM)", t),
         Prompt::Report { text, .. } => ("Report received (Enter: worked)", text),
+        Prompt::Station(t) => ("Own station: call sign and locator", t),
     };
     let r = centered(area, 70, 3);
     f.render_widget(Clear, r);
