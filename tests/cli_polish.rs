@@ -188,3 +188,32 @@ fn an_error_and_its_cause_are_not_said_twice() {
         assert_eq!(err.matches("No such file").count(), 1, "{err}");
     }
 }
+
+#[test]
+fn an_empty_drill_in_use_is_pointed_out_on_stderr() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    run(&["--db", d, "demo", "--no-ui"], &[]);
+    let (code, out, err) = run(&["--db", d, "plan", "--format", "json"], &[]);
+    assert_eq!(code, 0, "{err}");
+    assert!(!err.contains("no contacts"), "{err}");
+    let (code, _, err) = run(&["--db", d, "drill", "new", "Next drill"], &[]);
+    assert_eq!(code, 0, "{err}");
+    for cmd in ["plan", "coverage"] {
+        let (code, json, err) = run(&["--db", d, cmd, "--format", "json"], &[]);
+        assert_eq!(code, 0, "{err}");
+        assert!(
+            err.contains("drill `Next drill` has no contacts") && err.contains("--drill"),
+            "{cmd}: {err}"
+        );
+        // stdout stays JSON for scripts.
+        serde_json::from_str::<serde_json::Value>(&json).unwrap();
+    }
+    let (_, again, err) = run(
+        &["--db", d, "plan", "--format", "json", "--drill", "all"],
+        &[],
+    );
+    assert!(!err.contains("no contacts"), "{err}");
+    assert_eq!(again, out);
+}

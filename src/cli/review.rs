@@ -34,6 +34,20 @@ pub(super) fn drill_name(book: &Logbook, given: Option<&str>) -> Result<Option<S
     }
 }
 
+/// Says on stderr (so that the output stays clean for scripts) when the chosen drill holds
+/// nothing: usually a new drill was just put in use and another one was meant.
+fn say_if_empty(drill: Option<&str>, attempts: u64) {
+    if attempts > 0 {
+        return;
+    }
+    match drill {
+        Some(d) => eprintln!(
+            "nearsky: drill `{d}` has no contacts; --drill NAME uses another drill (`nearsky drill list`), --drill all every contact"
+        ),
+        None => eprintln!("nearsky: the logbook has no contacts yet"),
+    }
+}
+
 /// Coverage of a drill, for the commands.
 pub fn load_coverage(
     book: &Logbook,
@@ -118,6 +132,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
         ..CoverageConfig::default()
     };
     let c = load_coverage(&book, drill.as_deref(), config)?;
+    say_if_empty(drill.as_deref(), c.observations);
     let bands: Vec<Band> = c
         .bands
         .iter()
@@ -428,6 +443,10 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
     let drill = drill_name(&book, a.drill.as_deref())?;
     let for_date = plan_date(a.for_date.as_deref())?;
     let p = plan_of(&book, drill.as_deref(), a.bin, a.min_attempts, for_date)?;
+    say_if_empty(
+        drill.as_deref(),
+        p.bins.iter().map(|b| u64::from(b.attempts)).sum(),
+    );
     let name = |b: Option<Band>| b.map_or(String::new(), |b| b.name().to_string());
     match a.format {
         ReviewFormat::Json => {
