@@ -217,3 +217,42 @@ fn an_empty_drill_in_use_is_pointed_out_on_stderr() {
     assert!(!err.contains("no contacts"), "{err}");
     assert_eq!(again, out);
 }
+
+#[test]
+fn logging_on_60_m_above_15_w_or_off_the_segment_is_cautioned_not_refused() {
+    // The limit and segment of ITU Radio Regulations footnote 5.133B (WRC-15).
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    let (code, _, err) = run(
+        &[
+            "--db", d, "station", "set", "--call", "Q3NET", "--grid", "JN17ga",
+        ],
+        &[],
+    );
+    assert_eq!(code, 0, "{err}");
+    let log = |freq: &str, power: &str| {
+        run(
+            &[
+                "--db", d, "log", "Q4SHL", "--freq", freq, "--mode", "USB", "--power", power,
+            ],
+            &[],
+        )
+    };
+    let (code, out, err) = log("5.3625", "100");
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("logged"), "{out}");
+    assert!(
+        err.contains("caution: 60 m: 100 W") && err.contains("licence"),
+        "{err}"
+    );
+    let (code, _, err) = log("5.3305", "10");
+    assert_eq!(code, 0, "{err}");
+    assert!(err.contains("outside the worldwide segment"), "{err}");
+    let (code, _, err) = log("5.3625", "10");
+    assert_eq!(code, 0);
+    assert!(!err.contains("caution"), "{err}");
+    let (code, _, err) = log("7.1", "100");
+    assert_eq!(code, 0);
+    assert!(!err.contains("caution"), "{err}");
+}

@@ -167,6 +167,19 @@ fn nothing_is_cut_off_at_80_columns() {
         rows[20].starts_with('└'),
         "the body ends above the message: {out}"
     );
+    // The longest message the log screen makes: a save with a caution.
+    let caution = nearsky::domain::caution::transmit_cautions(
+        nearsky::domain::Band::B60m,
+        nearsky::domain::Frequency::from_hz(5_330_500).ok(),
+        None,
+    );
+    let long = format!("saved Q4SHL 60m worked — caution: {}", caution[0]);
+    s.message = Some(Message::Warning(long.clone()));
+    let out = render(&s, 80, 24, false);
+    let rows: Vec<&str> = out.lines().collect();
+    let border = rows.iter().rposition(|l| l.starts_with('└')).unwrap();
+    let shown: Vec<&str> = rows[border + 1..23].iter().map(|l| l.trim()).collect();
+    assert_eq!(shown.join(" "), format!("warning: {long}"), "{out}");
 }
 
 #[test]

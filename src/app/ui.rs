@@ -621,13 +621,22 @@ impl AppState {
                 } else {
                     String::new()
                 };
+                // The first caution only: the message line is short.
+                let caution = crate::domain::caution::transmit_cautions(
+                    contact.band,
+                    contact.frequency,
+                    contact.own.power,
+                )
+                .into_iter()
+                .next()
+                .map_or(String::new(), |c| format!(" — caution: {c}"));
                 let text = format!(
-                    "saved {} {} {}{dup}",
+                    "saved {} {} {}{dup}{caution}",
                     contact.call,
                     contact.band,
                     contact.outcome.words()
                 );
-                self.message = Some(if duplicates > 0 {
+                self.message = Some(if duplicates > 0 || !caution.is_empty() {
                     Message::Warning(text)
                 } else {
                     Message::Info(text)
@@ -1294,6 +1303,32 @@ mod tests {
             Err(
                 "own station `Q3NET`: type the call sign and the locator, e.g. Q3NET JN17ga".into()
             )
+        );
+    }
+
+    #[test]
+    fn a_save_on_60_m_above_the_limit_is_kept_and_cautioned() {
+        let mut s = AppState::new(snapshot());
+        let mut id = || ContactId(uuid::Uuid::from_u128(9));
+        typed(&mut s, "Q4SHL");
+        s.entry.values[Entry::idx(Field::Frequency)] = "5.3625".into();
+        s.entry.values[Entry::idx(Field::Band)] = "60m".into();
+        s.entry.values[Entry::idx(Field::Mode)] = "USB".into();
+        let u = s.key(Key::Enter, now(), &mut id);
+        let [Effect::Add { contact, .. }] = &u.effects[..] else {
+            panic!("{:?} {:?}", u.effects, s.message);
+        };
+        // The snapshot's usual power is 50 W: above 15 W e.i.r.p. (ITU RR 5.133B).
+        let added = Done::Added {
+            contact: contact.clone(),
+            duplicates: 0,
+            from_entry: true,
+        };
+        s.done(added);
+        assert!(
+            matches!(&s.message, Some(Message::Warning(m)) if m.starts_with("saved Q4SHL 60m worked — caution: 60 m: 50 W")),
+            "{:?}",
+            s.message
         );
     }
 

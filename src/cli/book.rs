@@ -13,6 +13,7 @@ use super::args::{
     StationCommand, TextOrJson, WriterArgs,
 };
 use super::{CliError, band_flag, io, usage};
+use crate::domain::caution::transmit_cautions;
 use crate::domain::geo;
 use crate::domain::{
     Band, Callsign, Contact, ContactForm, ContactId, FormContext, Locator, Origin, Outcome, Power,
@@ -262,6 +263,10 @@ pub fn log(
         .or(config.duplicate_window_minutes)
         .unwrap_or(10);
     let dups = book.add_contact(&contact, window).map_err(st)?;
+    // On stderr, so that the JSON on stdout stays clean; the contact is logged either way.
+    for c in transmit_cautions(contact.band, contact.frequency, contact.own.power) {
+        eprintln!("caution: {c}");
+    }
     match a.format {
         TextOrJson::Json => {
             let mut v = contact_json(&contact, false, 1);

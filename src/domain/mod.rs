@@ -2,6 +2,7 @@
 //! no SQL; everything else in the crate depends on this module, never the other way round.
 
 pub mod callsign;
+pub mod caution;
 pub mod contact;
 pub mod coverage;
 pub mod frequency;

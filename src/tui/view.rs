@@ -57,13 +57,11 @@ pub fn outcome_glyph(o: Outcome) -> &'static str {
 /// Draws the whole screen.
 pub fn draw(f: &mut Frame, s: &AppState, now: DateTime<Utc>, theme: Theme) {
     let area = f.area();
-    // A message longer than the screen is wide takes a second row rather than being cut off.
+    // A message longer than the screen is wide takes up to three rows rather than being cut
+    // off (words are not split, hence the spare room).
     let (text, _) = message_text(s, theme);
-    let message_rows = if text.chars().count() > usize::from(area.width) {
-        2
-    } else {
-        1
-    };
+    let width = usize::from(area.width.max(1));
+    let message_rows = (text.chars().count() * 11 / 10).div_ceil(width).clamp(1, 3) as u16;
     let [status, banner, body, message, hints] = Layout::vertical([
         Constraint::Length(1),
         Constraint::Length(1),
