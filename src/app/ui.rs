@@ -337,6 +337,9 @@ pub struct AppState {
     /// Added to the system clock for entries (set by hand when the clock is wrong).
     pub clock_offset: Duration,
     pub clock_set_by_hand: bool,
+    /// The prompt's text is a suggestion (the time now, report 59): the first character
+    /// typed replaces it, as in the entry form.
+    pub prompt_suggested: bool,
     pub roll_sel: usize,
     pub roll_band: Band,
     pub review_tab: ReviewTab,
@@ -385,6 +388,7 @@ impl AppState {
             help: false,
             clock_offset: Duration::zero(),
             clock_set_by_hand: false,
+            prompt_suggested: false,
             roll_sel: 0,
             roll_band: Band::B80m,
             review_tab: ReviewTab::Hours,
@@ -723,6 +727,7 @@ impl AppState {
                 self.prompt = Some(Prompt::SetClock(
                     self.entry_time(now).format("%Y-%m-%d %H:%M").to_string(),
                 ));
+                self.prompt_suggested = true;
                 return Update::redraw();
             }
             _ => {}
@@ -771,14 +776,18 @@ impl AppState {
                 return Update::redraw();
             }
             Key::Char(c) => {
+                if std::mem::take(&mut self.prompt_suggested) {
+                    text.clear();
+                }
                 text.push(c);
                 return Update::redraw();
             }
             Key::Backspace => {
+                self.prompt_suggested = false;
                 text.pop();
                 return Update::redraw();
             }
-            Key::Enter => {}
+            Key::Enter => self.prompt_suggested = false,
             _ => return Update::default(),
         }
         let Some(p) = self.prompt.take() else {
@@ -1085,6 +1094,7 @@ impl AppState {
                     roster: self.roll_sel,
                     text: "59".into(),
                 });
+                self.prompt_suggested = true;
             }
             Key::Char('p') => {
                 return self.roll_save(self.roll_sel, Outcome::Partial, None, now, new_id);
@@ -1440,6 +1450,24 @@ mod tests {
             (contact.outcome, contact.rcvd.map(|r| r.to_string())),
             (Outcome::Worked, Some("59".into()))
         );
+        // The suggested 59 is replaced by what is typed, not added to.
+        s.key(Key::Char('w'), now(), &mut id);
+        typed(&mut s, "57");
+        assert_eq!(
+            s.prompt,
+            Some(Prompt::Report {
+                roster: 0,
+                text: "57".into()
+            })
+        );
+        // Once typing started, keys edit.
+        s.key(Key::Backspace, now(), &mut id);
+        typed(&mut s, "5");
+        let u = s.key(Key::Enter, now(), &mut id);
+        let Some(Effect::Add { contact, .. }) = u.effects.first() else {
+            panic!("{:?}", s.message)
+        };
+        assert_eq!(contact.rcvd.map(|r| r.to_string()), Some("55".into()));
     }
 
     #[test]
@@ -1452,9 +1480,8 @@ mod tests {
         assert!(s.clock_warning(early).unwrap().contains("released"));
         let mut id = || ContactId(uuid::Uuid::nil());
         s.key(Key::Ctrl('k'), now(), &mut id);
-        if let Some(Prompt::SetClock(t)) = &mut s.prompt {
-            t.clear();
-        }
+        // The time now is suggested; typing replaces it.
+        assert_eq!(s.prompt, Some(Prompt::SetClock("2026-12-02 14:05".into())));
         for c in "2026-12-06 10:00".chars() {
             s.key(Key::Char(c), now(), &mut id);
         }

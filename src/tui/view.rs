@@ -84,7 +84,7 @@ pub fn draw(f: &mut Frame, s: &AppState, now: DateTime<Utc>, theme: Theme) {
         hints,
     );
     if let Some(p) = &s.prompt {
-        draw_prompt(f, area, p);
+        draw_prompt(f, area, p, s.prompt_suggested);
     }
     if s.help {
         draw_help(f, area, s);
@@ -820,7 +820,7 @@ fn centered(area: Rect, w: u16, h: u16) -> Rect {
     }
 }
 
-fn draw_prompt(f: &mut Frame, area: Rect, p: &Prompt) {
+fn draw_prompt(f: &mut Frame, area: Rect, p: &Prompt, suggested: bool) {
     let (title, text) = match p {
         Prompt::Note(t) => ("Propagation note (time and band are added)", t),
         Prompt::Reason {
@@ -835,8 +835,15 @@ fn draw_prompt(f: &mut Frame, area: Rect, p: &Prompt) {
     let r = centered(area, 70, 3);
     f.render_widget(Clear, r);
     let shown = visible(text).into_owned();
+    // A suggestion is dimmed: typing replaces it.
+    let style = if suggested {
+        Style::new().add_modifier(Modifier::DIM)
+    } else {
+        Style::new()
+    };
     f.render_widget(
-        Paragraph::new(shown.clone()).block(Block::bordered().title(format!(" {title} "))),
+        Paragraph::new(Span::styled(shown.clone(), style))
+            .block(Block::bordered().title(format!(" {title} "))),
         r,
     );
     f.set_cursor_position((r.x + 1 + shown.chars().count().min(67) as u16, r.y + 1));
