@@ -849,5 +849,11 @@ fn an_export_whose_output_fails_says_so_and_stops() {
         )
         .unwrap_err();
         assert!(e.to_string().contains("no space left on device"), "{e}");
+        // The output's own error is kept as it is, wherever the export was when it failed,
+        // so that the command line can tell a closed pipe from a real failure.
+        let transfer::TransferError::Io { source, .. } = &e else {
+            panic!("{e:?}");
+        };
+        assert_eq!(source.kind(), std::io::ErrorKind::Other, "{e:?}");
     }
 }

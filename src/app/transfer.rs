@@ -275,6 +275,9 @@ pub fn export(
         });
         let mut n = 0;
         let mut batch = Vec::with_capacity(EXPORT_BATCH);
+        // A failed write to the output, kept as it is (a closed pipe is told apart from
+        // other failures by its kind).
+        let mut write_failed: Option<io::Error> = None;
         let written = book.for_each_contact(q, |s| {
             if include_attempts || s.contact.outcome.made_contact() {
                 n += 1;
@@ -288,8 +291,10 @@ pub fn export(
                     return Err(StoreError::Invalid("the export stopped".into()));
                 }
                 while let Ok(b) = bytes.try_recv() {
-                    out.write_all(&b)
-                        .map_err(|e| StoreError::Invalid(format!("writing the export: {e}")))?;
+                    if let Err(e) = out.write_all(&b) {
+                        write_failed = Some(e);
+                        return Err(StoreError::Invalid("the export stopped".into()));
+                    }
                 }
             }
             Ok(())
@@ -307,8 +312,12 @@ pub fn export(
         let formatted = formatter
             .join()
             .unwrap_or_else(|panic| std::panic::resume_unwind(panic));
-        // The formatter's own error first: when it failed, the reading stopped because of it.
+        // The formatter's own error first: when it failed, the reading stopped because of it;
+        // likewise a failed write.
         formatted.map_err(io_err)?;
+        if let Some(e) = write_failed {
+            return Err(io_err(e));
+        }
         written?;
         rest.map_err(io_err)?;
         out.flush().map_err(io_err)?;
