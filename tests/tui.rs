@@ -98,6 +98,27 @@ fn every_screen_draws_at_80x24_and_at_a_large_size() {
         map.contains("Map: 80m at 12:00 UTC") && map.contains("Q2SCH") && map.contains('@'),
         "{map}"
     );
+    // Every call on the map is whole: labels do not run into each other.
+    let calls: Vec<String> = book
+        .roster()
+        .unwrap()
+        .iter()
+        .map(|e| e.call.to_string())
+        .chain(["Q3NET".to_string()])
+        .collect();
+    let chars: Vec<char> = map.chars().collect();
+    let mut seen = 0;
+    for i in 0..chars.len().saturating_sub(1) {
+        if chars[i] == 'Q' && chars[i + 1].is_ascii_digit() {
+            let token: String = chars[i..]
+                .iter()
+                .take_while(|c| c.is_ascii_uppercase() || c.is_ascii_digit())
+                .collect();
+            assert!(calls.contains(&token), "`{token}` on the map: {map}");
+            seen += 1;
+        }
+    }
+    assert!(seen >= 8, "{map}");
     press(&mut book, &mut s, Key::F(1));
     let help = render(&s, 80, 24, false);
     assert!(

@@ -801,12 +801,109 @@ fn draw_map(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                     Span::styled(outcome_glyph(*o), theme.outcome(*o)),
                 );
             }
-            for (call, (x, y)) in &pos {
-                ctx.print(*x, *y, Span::styled(format!("o{call}"), bold()));
-            }
-            ctx.print(0.0, 0.0, Span::styled("@", bold()));
         });
     f.render_widget(canvas, area);
+    // The stations on top, in the canvas's own cell arithmetic: the own station first, then
+    // by distance, each label beside its marker where it covers no other label or marker.
+    let inner = Block::bordered().inner(area);
+    if inner.width < 2 || inner.height < 2 {
+        return;
+    }
+    let cell = |(x, y): (f64, f64)| {
+        let col = ((x + max) * f64::from(inner.width - 1) / (2.0 * max)) as u16;
+        let row = ((max - y) * f64::from(inner.height - 1) / (2.0 * max)) as u16;
+        (col.min(inner.width - 1), row.min(inner.height - 1))
+    };
+    // The own station's place, even when it is not in the coverage (nothing logged yet).
+    let centre = (String::new(), (0.0, 0.0));
+    let mut order: Vec<&(String, (f64, f64))> = pos.iter().collect();
+    if !pos.iter().any(|(_, p)| p.0.hypot(p.1) < 1e-9) {
+        order.push(&centre);
+    }
+    order.sort_by(|a, b| {
+        let d = |p: &(f64, f64)| p.0.hypot(p.1);
+        d(&a.1).total_cmp(&d(&b.1))
+    });
+    // Stations that fall in the cell of one before them are not drawn; its label says how
+    // many share it (`Q3NET+1`).
+    let mut labels: Vec<(String, (u16, u16), bool)> = Vec::new();
+    for (call, p) in &order {
+        let at = cell(*p);
+        match labels.iter_mut().find(|l| l.1 == at) {
+            Some(first) => first.0.push('+'),
+            None => labels.push((call.clone(), at, p.0.hypot(p.1) < 1e-9)),
+        }
+    }
+    for l in &mut labels {
+        let shared = l.0.chars().rev().take_while(|c| *c == '+').count();
+        if shared > 0 {
+            l.0.truncate(l.0.len() - shared);
+            l.0.push_str(&format!("+{shared}"));
+        }
+    }
+    let marks: Vec<Mark> = labels
+        .iter()
+        .map(|(text, (col, row), _)| Mark {
+            col: *col,
+            row: *row,
+            len: text.chars().count() as u16,
+        })
+        .collect();
+    let glyphs: Vec<(u16, u16)> = links
+        .iter()
+        .map(|(a, b, _)| cell(((a.0 + b.0) / 2.0, (a.1 + b.1) / 2.0)))
+        .collect();
+    let placed = place_labels(&marks, &glyphs, inner.width);
+    let buf = f.buffer_mut();
+    for (((text, _, own), m), at) in labels.iter().zip(&marks).zip(placed) {
+        let marker = if *own { "@" } else { "o" };
+        buf.set_string(inner.x + m.col, inner.y + m.row, marker, bold());
+        if let Some(col) = at {
+            buf.set_string(inner.x + col, inner.y + m.row, text, bold());
+        }
+    }
+}
+
+/// A station on the map: its marker's cell and the length of its label.
+#[derive(Debug, Clone, Copy)]
+struct Mark {
+    col: u16,
+    row: u16,
+    len: u16,
+}
+
+/// Where each label starts (in `marks` order, which is the priority): right of its marker,
+/// else left of it, else nowhere (the marker alone). Labels never cover a marker or another
+/// label; they avoid the link glyphs `glyphs` when they can.
+fn place_labels(marks: &[Mark], glyphs: &[(u16, u16)], width: u16) -> Vec<Option<u16>> {
+    use std::collections::HashSet;
+    let mut taken: HashSet<(u16, u16)> = marks.iter().map(|m| (m.col, m.row)).collect();
+    let soft: HashSet<(u16, u16)> = glyphs.iter().copied().collect();
+    let mut out = Vec::with_capacity(marks.len());
+    for m in marks {
+        let right = m.col + 1;
+        let left = m.col.checked_sub(m.len);
+        let fits = |start: u16, avoid_glyphs: bool| {
+            start + m.len <= width
+                && (start..start + m.len).all(|c| {
+                    let blocked =
+                        taken.contains(&(c, m.row)) || avoid_glyphs && soft.contains(&(c, m.row));
+                    !blocked
+                })
+        };
+        let at = [true, false].into_iter().find_map(|avoid| {
+            if fits(right, avoid) {
+                Some(right)
+            } else {
+                left.filter(|&l| fits(l, avoid))
+            }
+        });
+        if let Some(start) = at {
+            taken.extend((start..start + m.len).map(|c| (c, m.row)));
+        }
+        out.push(at);
+    }
+    out
 }
 
 fn centered(area: Rect, w: u16, h: u16) -> Rect {
@@ -895,4 +992,55 @@ fn draw_help(f: &mut Frame, area: Rect, s: &AppState) {
             .block(Block::bordered().title(" Help ")),
         r,
     );
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn mark(col: u16, row: u16, len: u16) -> Mark {
+        Mark { col, row, len }
+    }
+
+    #[test]
+    fn map_labels_go_right_then_left_and_never_cover_each_other() {
+        // Labels go right of their markers; a marker right after another's label finds its
+        // right side blocked by a marker and its left by that label: no label.
+        let marks = [mark(10, 3, 5), mark(17, 3, 5), mark(16, 3, 5)];
+        assert_eq!(
+            place_labels(&marks, &[], 40),
+            vec![Some(11), Some(18), None]
+        );
+        // A label whose right side holds a marker goes left.
+        let marks = [mark(10, 3, 5), mark(8, 3, 5)];
+        assert_eq!(place_labels(&marks, &[], 40), vec![Some(11), Some(3)]);
+        // At the right edge a label goes left.
+        assert_eq!(place_labels(&[mark(38, 0, 5)], &[], 40), vec![Some(33)]);
+        // A link glyph is avoided when the other side is free, covered when nothing else fits.
+        assert_eq!(
+            place_labels(&[mark(10, 0, 3)], &[(12, 0)], 40),
+            vec![Some(7)]
+        );
+        assert_eq!(
+            place_labels(&[mark(10, 0, 3)], &[(12, 0), (8, 0)], 40),
+            vec![Some(11)]
+        );
+        // Wherever labels were put, no two cover one cell, and none covers a marker.
+        let marks: Vec<Mark> = (0..30).map(|i| mark((i * 7) % 38, i % 4, 5)).collect();
+        let at = place_labels(&marks, &[], 40);
+        let mut cells = std::collections::HashSet::new();
+        for m in &marks {
+            cells.insert((m.col, m.row));
+        }
+        let markers = cells.clone();
+        for (m, a) in marks.iter().zip(&at) {
+            if let Some(s) = a {
+                for c in *s..*s + m.len {
+                    assert!(c < 40);
+                    assert!(cells.insert((c, m.row)), "overlap at {c},{}", m.row);
+                    assert!(!markers.contains(&(c, m.row)));
+                }
+            }
+        }
+    }
 }
