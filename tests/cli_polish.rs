@@ -143,14 +143,20 @@ fn the_config_file_fills_in_and_flags_win() {
     assert!(err.contains("config.toml: power_w: power `-3 W`"), "{err}");
 }
 
+/// A logbook holding the demo drill, in a directory that lives as long as the first value.
+fn demo_book() -> (tempfile::TempDir, String) {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db").to_str().unwrap().to_string();
+    let (code, _, err) = run(&["--db", &db, "demo", "--no-ui"], &[]);
+    assert_eq!(code, 0, "{err}");
+    (dir, db)
+}
+
 #[test]
 fn a_reader_that_stops_early_is_not_an_error() {
     // `nearsky export | head -1`: the pipe closes under the writer.
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    let (code, _, err) = run(&["--db", d, "demo", "--no-ui"], &[]);
-    assert_eq!(code, 0, "{err}");
+    let (_dir, db) = demo_book();
+    let d = db.as_str();
     let mut child = std::process::Command::new(env!("CARGO_BIN_EXE_nearsky"))
         .args(["--db", d, "export", "--format", "csv", "--include-attempts"])
         .stdout(std::process::Stdio::piped())
@@ -171,10 +177,8 @@ fn a_reader_that_stops_early_is_not_an_error() {
 
 #[test]
 fn an_error_and_its_cause_are_not_said_twice() {
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    run(&["--db", d, "demo", "--no-ui"], &[]);
+    let (dir, db) = demo_book();
+    let d = db.as_str();
     let missing = dir.path().join("no/such/dir/x.adi");
     for args in [
         vec!["export", "-o", missing.to_str().unwrap()],
@@ -191,10 +195,8 @@ fn an_error_and_its_cause_are_not_said_twice() {
 
 #[test]
 fn an_empty_drill_in_use_is_pointed_out_on_stderr() {
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    run(&["--db", d, "demo", "--no-ui"], &[]);
+    let (_dir, db) = demo_book();
+    let d = db.as_str();
     let (code, out, err) = run(&["--db", d, "plan", "--format", "json"], &[]);
     assert_eq!(code, 0, "{err}");
     assert!(!err.contains("no contacts"), "{err}");
