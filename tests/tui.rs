@@ -510,3 +510,27 @@ fn a_new_logbook_asks_for_the_own_station_and_then_logs() {
 fn count_in(book: &Logbook) -> u64 {
     book.count(&ContactQuery::default()).unwrap()
 }
+
+#[test]
+fn the_review_includes_what_was_logged_since_it_was_last_opened() {
+    let (mut book, mut s) = demo_state();
+    press(&mut book, &mut s, Key::Ctrl('v'));
+    let before = s.review.as_ref().unwrap().0.observations;
+    press(&mut book, &mut s, Key::Ctrl('l'));
+    for c in "Q4SHL".chars() {
+        press(&mut book, &mut s, Key::Char(c));
+    }
+    s.entry.values[3] = "7.1".into();
+    s.entry.values[4] = "40m".into();
+    s.entry.values[5] = "LSB".into();
+    press(&mut book, &mut s, Key::Enter);
+    assert!(
+        matches!(&s.message, Some(Message::Info(m)) if m.starts_with("saved Q4SHL 40m")),
+        "{:?}",
+        s.message
+    );
+    press(&mut book, &mut s, Key::Ctrl('v'));
+    assert_eq!(s.review.as_ref().unwrap().0.observations, before + 1);
+    // Nothing new: switching back and forth keeps the coverage as it is.
+    assert_eq!(s.review_changes, s.changes);
+}

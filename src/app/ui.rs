@@ -337,6 +337,10 @@ pub struct AppState {
     /// Added to the system clock for entries (set by hand when the clock is wrong).
     pub clock_offset: Duration,
     pub clock_set_by_hand: bool,
+    /// Contacts saved, corrected or deleted since start, and how many of those the review
+    /// screens' coverage includes: opening Review or Map again recomputes it when they differ.
+    pub changes: u64,
+    pub review_changes: u64,
     /// The prompt's text is a suggestion (the time now, report 59): the first character
     /// typed replaces it, as in the entry form.
     pub prompt_suggested: bool,
@@ -389,6 +393,8 @@ impl AppState {
             clock_offset: Duration::zero(),
             clock_set_by_hand: false,
             prompt_suggested: false,
+            changes: 0,
+            review_changes: 0,
             roll_sel: 0,
             roll_band: Band::B80m,
             review_tab: ReviewTab::Hours,
@@ -640,6 +646,7 @@ impl AppState {
                     contact.band,
                     contact.outcome.words()
                 );
+                self.changes += 1;
                 self.message = Some(if duplicates > 0 || !caution.is_empty() {
                     Message::Warning(text)
                 } else {
@@ -648,6 +655,7 @@ impl AppState {
                 Update::with(Effect::Reload)
             }
             Done::Edited(_) => {
+                self.changes += 1;
                 self.entry = Entry::default();
                 self.message = Some(Message::Info(
                     "correction saved; the previous version is kept".into(),
@@ -655,6 +663,7 @@ impl AppState {
                 Update::with(Effect::Reload)
             }
             Done::Deleted(_) => {
+                self.changes += 1;
                 self.recent_sel = None;
                 self.message = Some(Message::Info(
                     "deleted (kept in the file, marked deleted)".into(),
@@ -740,11 +749,19 @@ impl AppState {
         }
     }
 
+    fn load_review(&mut self) -> Update {
+        self.review_changes = self.changes;
+        Update::with(Effect::LoadReview)
+    }
+
     fn go(&mut self, s: Screen) -> Update {
         self.screen = s;
         self.message = None;
-        if matches!(s, Screen::Review | Screen::Map) && self.review.is_none() {
-            return Update::with(Effect::LoadReview);
+        // The last coverage stays on screen until the new one arrives.
+        if matches!(s, Screen::Review | Screen::Map)
+            && (self.review.is_none() || self.review_changes != self.changes)
+        {
+            return self.load_review();
         }
         if s == Screen::RollCall
             && let Some(b) = self
@@ -1151,7 +1168,7 @@ impl AppState {
             Key::Up => self.review_scroll = self.review_scroll.saturating_sub(1),
             Key::PageDown => self.review_scroll += 10,
             Key::PageUp => self.review_scroll = self.review_scroll.saturating_sub(10),
-            Key::Char('u') => return Update::with(Effect::LoadReview),
+            Key::Char('u') => return self.load_review(),
             Key::Esc => return self.go(Screen::Log),
             _ => return Update::default(),
         }
