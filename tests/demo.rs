@@ -184,13 +184,56 @@ fn review_commands_on_the_demo() {
         rows.iter()
             .any(|r| r["band"] == "40m" && r["hour_start"] == "12:00")
     );
-    for view in ["links", "hours", "rings"] {
-        let (code, out, _) = nearsky(&["--db", d, "coverage", "--view", view]);
-        assert_eq!(code, 0);
-        assert!(
-            out.lines().all(|l| l.chars().count() <= 80),
-            "{view} fits 80 columns:\n{out}"
-        );
+    // Every view fits 80 columns at any bin width: short bins stack as parts of the day, and
+    // each hour label sits over the bin that starts that hour.
+    for bin in ["10", "15", "30", "60", "120"] {
+        for view in ["links", "hours", "rings"] {
+            let (code, out, _) = nearsky(&["--db", d, "coverage", "--view", view, "--bin", bin]);
+            assert_eq!(code, 0);
+            assert!(
+                out.lines().all(|l| l.chars().count() <= 80),
+                "{view} at {bin} min fits 80 columns:\n{out}"
+            );
+            let minutes: usize = bin.parse().unwrap();
+            let lines: Vec<&str> = out.lines().collect();
+            for (i, ruler) in lines.iter().enumerate() {
+                let Some(width) = ["link               km  brg ", "ring km    "]
+                    .iter()
+                    .find(|p| ruler.starts_with(**p))
+                    .map(|p| p.len())
+                else {
+                    continue;
+                };
+                // The part's first bin, from the heading above ("40m, 12:00–24:00 UTC: ...").
+                let start = lines[..i]
+                    .iter()
+                    .rev()
+                    .find_map(|l| {
+                        l.split_once(", ")
+                            .and_then(|(_, r)| r.get(..5))
+                            .filter(|t| t.as_bytes().get(2) == Some(&b':'))
+                    })
+                    .map_or(0, |t| {
+                        let (h, m) = t.split_once(':').unwrap();
+                        (h.parse::<usize>().unwrap() * 60 + m.parse::<usize>().unwrap()) / minutes
+                    });
+                let labels: Vec<(usize, usize)> = ruler[width..]
+                    .char_indices()
+                    .filter(|(k, c)| {
+                        c.is_ascii_digit() && (*k == 0 || &ruler[width + k - 1..width + k] == " ")
+                    })
+                    .map(|(k, _)| (k, ruler[width + k..width + k + 2].parse().unwrap()))
+                    .collect();
+                assert!(labels.len() >= 3, "{ruler}");
+                for (k, hour) in labels {
+                    assert_eq!(
+                        (start + k) * minutes,
+                        hour * 60,
+                        "{view} at {bin} min: {ruler}"
+                    );
+                }
+            }
+        }
     }
     let (_, out, _) = nearsky(&["--db", d, "plan", "--format", "json"]);
     let p: serde_json::Value = serde_json::from_str(&out).unwrap();
@@ -253,4 +296,54 @@ fn review_commands_on_the_demo() {
     ]);
     assert_eq!(code, 2);
     assert!(err.contains("neither a JSON plan"), "{err}");
+}
+
+#[test]
+fn every_table_of_the_command_line_fits_80_columns() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("demo.db");
+    let d = db.to_str().unwrap();
+    let (_, intro, _) = nearsky(&["--db", d, "demo", "--no-ui"]);
+    // A deleted contact and a long roster role, the widest rows of their tables.
+    let (_, json, _) = nearsky(&["--db", d, "list", "--format", "json", "--limit", "1"]);
+    let first: serde_json::Value = serde_json::from_str(&json).unwrap();
+    let id = first[0]["id"].as_str().unwrap().to_string();
+    let (code, _, err) = nearsky(&["--db", d, "delete", &id[..8], "--reason", "test"]);
+    assert_eq!(code, 0, "{err}");
+    let (code, _, err) = nearsky(&[
+        "--db",
+        d,
+        "roster",
+        "add",
+        "Q7LNG",
+        "--name",
+        "A very long tactical name indeed",
+        "--role",
+        "relay for the northern valley shelters and the hospital",
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let mut outputs = vec![("demo --no-ui".to_string(), intro)];
+    for args in [
+        vec!["list", "--deleted"],
+        vec!["roster", "list"],
+        vec!["crosscheck"],
+        vec!["drill", "list"],
+        vec!["station", "show"],
+    ] {
+        let mut all = vec!["--db", d];
+        all.extend(&args);
+        let (code, out, err) = nearsky(&all);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        outputs.push((args.join(" "), out));
+    }
+    for (what, out) in &outputs {
+        // A line naming the file is as long as its path.
+        for l in out.lines().filter(|l| !l.contains(d)) {
+            assert!(l.chars().count() <= 80, "{what}: `{l}`");
+        }
+    }
+    let list = &outputs[1].1;
+    assert!(list.contains(" deleted "), "{list}");
+    let roster = &outputs[2].1;
+    assert!(roster.contains("relay for the northern vall…"), "{roster}");
 }

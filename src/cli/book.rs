@@ -12,7 +12,7 @@ use super::args::{
     DeleteArgs, DrillCommand, EditArgs, ListArgs, ListFormat, LogArgs, NoteArgs, RosterCommand,
     StationCommand, TextOrJson, WriterArgs,
 };
-use super::{CliError, band_flag, io, usage};
+use super::{CliError, band_flag, clip, io, usage};
 use crate::domain::caution::transmit_cautions;
 use crate::domain::geo;
 use crate::domain::{
@@ -351,7 +351,7 @@ pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(),
         ListFormat::Table => {
             writeln!(
                 out,
-                "{:<16} {:<10} {:<5} {:<6} {:<10} {:>4} {:>4} {:>5} {:>4} id",
+                "{:<16} {:<10} {:<5} {:<6} {:<10} {:>4} {:>4} {:>4} {:>3} id",
                 "UTC", "call", "band", "mode", "outcome", "sent", "rcvd", "km", "brg"
             )
             .map_err(io)?;
@@ -360,18 +360,22 @@ pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(),
                 let (km, brg) = distance_bearing(c);
                 writeln!(
                     out,
-                    "{:<16} {:<10} {:<5} {:<6} {:<10} {:>4} {:>4} {:>5} {:>4} {}{}",
+                    "{:<16} {:<10} {:<5} {:<6} {:<10} {:>4} {:>4} {:>4} {:>3} {}",
                     c.start.format("%Y-%m-%d %H:%M"),
                     c.call.as_str(),
                     c.band.name(),
-                    truncate(c.mode.short(), 6),
-                    c.outcome.words(),
+                    clip(c.mode.short(), 6),
+                    // A deleted contact says so where its outcome would be (80 columns).
+                    if r.deleted {
+                        "deleted"
+                    } else {
+                        c.outcome.words()
+                    },
                     c.sent.map(|x| x.to_string()).unwrap_or_default(),
                     c.rcvd.map(|x| x.to_string()).unwrap_or_default(),
                     km.map(|d| format!("{d:.0}")).unwrap_or_default(),
                     brg.map(|b| format!("{b:.0}")).unwrap_or_default(),
                     &c.id.to_string()[..8],
-                    if r.deleted { " deleted" } else { "" }
                 )
                 .map_err(io)?;
             }
@@ -381,10 +385,6 @@ pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(),
         }
     }
     Ok(())
-}
-
-fn truncate(s: &str, n: usize) -> String {
-    s.chars().take(n).collect()
 }
 
 /// Corrects a contact. A bare time of day (`--time 14:05`) falls on the contact's own date.
@@ -732,9 +732,10 @@ pub fn roster(
                     out,
                     "{:<10} {:<16} {:<10} {km:>6} {brg:>4}  {}",
                     e.call.as_str(),
-                    truncate(&e.tactical, 16),
+                    clip(&e.tactical, 16),
                     grid,
-                    e.role
+                    // What is left of 80 columns.
+                    clip(&e.role, 28)
                 )
                 .map_err(io)?;
             }

@@ -78,7 +78,11 @@ pub fn demo(out: &mut impl Write, db: Option<&Path>, a: &DemoArgs) -> Result<(),
         crate::demo::scenario::DRILL_NAME
     )
     .map_err(io)?;
-    writeln!(out, "An invented scenario: every call sign (prefix Q, allocated to no country), name and event is fictional.\n").map_err(io)?;
+    writeln!(
+        out,
+        "An invented scenario: every call sign (prefix Q, allocated to no country), name\nand event is fictional.\n"
+    )
+    .map_err(io)?;
     crate::demo::print_net(out).map_err(io)?;
     let book = Logbook::open(&path).map_err(|e| CliError::Failure(e.into()))?;
     let n = book

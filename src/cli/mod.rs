@@ -48,6 +48,16 @@ impl CliError {
     }
 }
 
+/// `s` cut to `n` characters for a table column, with `…` where it was cut.
+pub(crate) fn clip(s: &str, n: usize) -> String {
+    if s.chars().count() <= n {
+        return s.to_string();
+    }
+    let mut out: String = s.chars().take(n.saturating_sub(1)).collect();
+    out.push('…');
+    out
+}
+
 /// A failed write to the output: exit code 1.
 pub(crate) fn io(e: std::io::Error) -> CliError {
     CliError::Failure(e.into())

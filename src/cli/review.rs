@@ -12,7 +12,7 @@ use serde_json::json;
 
 use super::args::{CoverageArgs, CoverageView, CrosscheckArgs, PlanArgs, ReviewFormat, TextOrJson};
 use super::book::open;
-use super::{CliError, band_flag, io, usage};
+use super::{CliError, band_flag, clip, io, usage};
 use crate::domain::coverage::{Coverage, CoverageConfig};
 use crate::domain::plan::{Plan, PlanConfig, make_plan};
 use crate::domain::{Band, Outcome};
@@ -93,28 +93,51 @@ fn group_glyph(worked: u32, attempts: u32) -> char {
     }
 }
 
-/// Hour ruler for 24 one-character columns (every third hour labelled).
-fn ruler(bins: usize, bin_minutes: u16) -> String {
+/// Hour labels over the one-character columns of bins `bins`: a label where a bin starts a
+/// whole hour, every 1, 2, 3, 4, 6, 12 or 24 hours, whichever first leaves three columns or
+/// more between labels.
+fn ruler(bins: std::ops::Range<usize>, bin_minutes: u16) -> String {
+    let minutes = usize::from(bin_minutes);
+    let step = [1, 2, 3, 4, 6, 12, 24]
+        .into_iter()
+        .find(|h| h * 60 >= 3 * minutes)
+        .unwrap_or(24);
     let mut s = String::new();
-    let mut i = 0;
-    while i < bins {
-        let hour = i * usize::from(bin_minutes) / 60;
-        if i % 3 == 0 {
-            let label = format!("{hour:02}");
-            s.push_str(&label);
-            i += label.len();
-            for _ in label.len()..3 {
-                if i < bins {
-                    s.push(' ');
-                    i += 1;
-                }
-            }
+    let mut bin = bins.start;
+    while bin < bins.end {
+        let minute = bin * minutes;
+        if minute.is_multiple_of(60 * step) && bin + 2 <= bins.end {
+            s.push_str(&format!("{:02}", minute / 60));
+            bin += 2;
         } else {
             s.push(' ');
-            i += 1;
+            bin += 1;
         }
     }
     s
+}
+
+/// The bins cut into equal runs of at most `room` columns (one when they all fit), so that a
+/// matrix of many short bins fits 80 columns as stacked parts of the day.
+fn bin_parts(bins: usize, room: usize) -> Vec<std::ops::Range<usize>> {
+    let room = room.max(1);
+    let parts = (bins.div_ceil(room)..=bins)
+        .find(|p| bins.is_multiple_of(*p))
+        .unwrap_or(bins)
+        .max(1);
+    let size = bins / parts;
+    (0..parts).map(|i| i * size..(i + 1) * size).collect()
+}
+
+/// `HH:MM–HH:MM UTC` of a run of bins (for a matrix shown in parts).
+fn span_label(c: &Coverage, bins: &std::ops::Range<usize>) -> String {
+    let end = bins.end * usize::from(c.config.bin_minutes);
+    format!(
+        "{}–{:02}:{:02} UTC",
+        c.config.hour_start(bins.start),
+        end / 60,
+        end % 60
+    )
 }
 
 fn opt(x: Option<f64>, digits: usize) -> String {
@@ -272,13 +295,22 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
         }
         (CoverageView::Links, fmt @ (ReviewFormat::Table | ReviewFormat::Md)) => {
             let fence = fmt == ReviewFormat::Md;
-            for b in &bands {
-                if fence {
-                    writeln!(out, "### {b}\n\n```").map_err(io)?;
+            // 27 columns of link, km and bearing before the bins.
+            let parts = bin_parts(c.config.bins(), 80 - 27);
+            for (b, part) in bands.iter().flat_map(|b| parts.iter().map(move |p| (b, p))) {
+                let span = if parts.len() > 1 {
+                    format!(", {}", span_label(&c, part))
                 } else {
+                    String::new()
+                };
+                if fence {
+                    writeln!(out, "### {b}{span}\n\n```").map_err(io)?;
+                } else {
+                    // A part's span says UTC already.
+                    let hours = if span.is_empty() { " (UTC hours)" } else { "" };
                     writeln!(
                         out,
-                        "{b}: W worked, p partial, x nothing heard, . not tried (UTC hours)"
+                        "{b}{span}: W worked, p partial, x nothing heard, . not tried{hours}"
                     )
                     .map_err(io)?;
                 }
@@ -288,16 +320,19 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
                     "link",
                     "km",
                     "brg",
-                    ruler(c.config.bins(), c.config.bin_minutes)
+                    ruler(part.clone(), c.config.bin_minutes)
                 )
                 .map_err(io)?;
                 for l in c.links.iter().filter(|l| l.cells.contains_key(b)) {
-                    let row: String = l.cells[b].iter().map(|cell| glyph(cell.as_ref())).collect();
+                    let row: String = l.cells[b][part.clone()]
+                        .iter()
+                        .map(|cell| glyph(cell.as_ref()))
+                        .collect();
                     let name = format!("{}-{}", l.a, l.b);
                     writeln!(
                         out,
                         "{:<15} {:>5} {:>4} {row}",
-                        truncate(&name, 15),
+                        clip(&name, 15),
                         opt(l.distance_km, 0),
                         opt(l.bearing_deg, 0)
                     )
@@ -326,21 +361,38 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
         (CoverageView::Rings, fmt @ (ReviewFormat::Table | ReviewFormat::Md)) => {
             let fence = fmt == ReviewFormat::Md;
             let labels = c.config.ring_labels();
-            for b in &bands {
-                if fence {
-                    writeln!(out, "### {b}\n\n```").map_err(io)?;
+            // 11 columns of ring before the bins.
+            let parts = bin_parts(c.config.bins(), 80 - 11);
+            for (b, part) in bands.iter().flat_map(|b| parts.iter().map(move |p| (b, p))) {
+                let span = if parts.len() > 1 {
+                    format!(", {}", span_label(&c, part))
                 } else {
-                    writeln!(out, "{b}: # most worked, + some, x none, . not tried (near rings failing while\n  far ones work: a skip zone)").map_err(io)?;
+                    String::new()
+                };
+                if fence {
+                    writeln!(out, "### {b}{span}\n\n```").map_err(io)?;
+                } else {
+                    let legend = if span.is_empty() {
+                        " (near rings failing while\n  far ones work: a skip zone)"
+                    } else {
+                        "\n  (near rings failing while far ones work: a skip zone)"
+                    };
+                    writeln!(
+                        out,
+                        "{b}{span}: # most worked, + some, x none, . not tried{legend}"
+                    )
+                    .map_err(io)?;
                 }
                 writeln!(
                     out,
                     "{:<10} {}",
                     "ring km",
-                    ruler(c.config.bins(), c.config.bin_minutes)
+                    ruler(part.clone(), c.config.bin_minutes)
                 )
                 .map_err(io)?;
                 for label in &labels {
-                    let row: String = (0..c.config.bins())
+                    let row: String = part
+                        .clone()
                         .map(|bin| {
                             let r = c
                                 .rings
@@ -408,10 +460,6 @@ pub(crate) fn wrap(text: &str, first: &str, rest: &str) -> String {
         at_start = false;
     }
     out
-}
-
-fn truncate(s: &str, n: usize) -> String {
-    s.chars().take(n).collect()
 }
 
 pub fn plan_of(
