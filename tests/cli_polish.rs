@@ -258,3 +258,26 @@ fn logging_on_60_m_above_15_w_or_off_the_segment_is_cautioned_not_refused() {
     assert_eq!(code, 0);
     assert!(!err.contains("caution"), "{err}");
 }
+
+#[test]
+fn every_argument_says_what_it_is() {
+    let mut all = Vec::new();
+    paths(&Cli::command(), Vec::new(), &mut all);
+    let mut missing = Vec::new();
+    for p in &all {
+        let mut cmd = Cli::command();
+        for name in p {
+            cmd = cmd.find_subcommand(name).unwrap().clone();
+        }
+        for a in cmd.get_arguments() {
+            let id = a.get_id().as_str();
+            if id == "help" || id == "version" {
+                continue;
+            }
+            if a.get_help().is_none() {
+                missing.push(format!("{} {id}", p.join(" ")));
+            }
+        }
+    }
+    assert!(missing.is_empty(), "arguments without help: {missing:#?}");
+}

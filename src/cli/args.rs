@@ -112,6 +112,7 @@ pub enum Command {
         after_help = "Example:\n  nearsky completions bash > ~/.local/share/bash-completion/completions/nearsky"
     )]
     Completions {
+        /// The shell to complete for.
         #[arg(value_enum)]
         shell: clap_complete::Shell,
     },
@@ -160,12 +161,14 @@ pub struct LogArgs {
     /// Station that relayed the exchange.
     #[arg(long)]
     pub via: Option<String>,
+    /// Free text kept with the contact.
     #[arg(long)]
     pub note: Option<String>,
     /// Minutes within which the same call, band and mode count as a possible duplicate
     /// (default: the config file's `duplicate_window_minutes`, else 10).
     #[arg(long)]
     pub dup_window: Option<u32>,
+    /// Text for people, JSON for scripts.
     #[arg(long, value_enum, default_value_t)]
     pub format: TextOrJson,
 }
@@ -174,6 +177,7 @@ pub struct LogArgs {
 pub struct NoteArgs {
     /// What was observed.
     pub text: String,
+    /// The band it is about (default: none, the note is about every band).
     #[arg(long)]
     pub band: Option<String>,
     /// UTC time (default: now).
@@ -195,6 +199,7 @@ pub struct ListArgs {
     /// Drill name (default: the drill in use; `all` for every drill).
     #[arg(long)]
     pub drill: Option<String>,
+    /// Only this band.
     #[arg(long)]
     pub band: Option<String>,
     /// Most contacts to show.
@@ -203,6 +208,7 @@ pub struct ListArgs {
     /// Show deleted contacts too.
     #[arg(long)]
     pub deleted: bool,
+    /// A table, CSV or JSON.
     #[arg(long, value_enum, default_value_t)]
     pub format: ListFormat,
 }
@@ -211,30 +217,43 @@ pub struct ListArgs {
 pub struct EditArgs {
     /// The contact's UUID (at least its first 4 characters).
     pub id: String,
+    /// New call sign of the other station.
     #[arg(long)]
     pub call: Option<String>,
+    /// New UTC time; a time of day alone (14:05) keeps the contact's date.
     #[arg(long)]
     pub time: Option<String>,
+    /// New frequency (7.1, 7100kHz); the band follows from it.
     #[arg(long, alias = "frequency")]
     pub freq: Option<String>,
+    /// New band, when the contact has no frequency.
     #[arg(long)]
     pub band: Option<String>,
+    /// New mode or submode.
     #[arg(long)]
     pub mode: Option<String>,
+    /// New own power in W.
     #[arg(long)]
     pub power: Option<String>,
+    /// New report sent.
     #[arg(long)]
     pub sent: Option<String>,
+    /// New report received.
     #[arg(long)]
     pub rcvd: Option<String>,
+    /// New locator of the other station.
     #[arg(long)]
     pub grid: Option<String>,
+    /// New power of the other station in W.
     #[arg(long)]
     pub their_power: Option<String>,
+    /// New outcome: worked, partial or none.
     #[arg(long)]
     pub outcome: Option<String>,
+    /// New relaying station.
     #[arg(long)]
     pub via: Option<String>,
+    /// New note.
     #[arg(long)]
     pub note: Option<String>,
     /// Why the contact is changed (kept in the revision trail).
@@ -258,10 +277,12 @@ pub enum DrillCommand {
         after_help = "Examples:\n  nearsky drill new \"Autumn exercise\" --ncs Q3NET\n  nearsky drill new \"Winter exercise\" --plan plan.json"
     )]
     New {
+        /// The drill's name, e.g. "Autumn exercise".
         name: String,
         /// Net control station.
         #[arg(long)]
         ncs: Option<String>,
+        /// What the drill is about.
         #[arg(long)]
         description: Option<String>,
         /// Planned start, UTC.
@@ -279,7 +300,10 @@ pub enum DrillCommand {
     List,
     /// Choose the drill new contacts belong to.
     #[command(after_help = "Example:\n  nearsky drill use \"Autumn exercise\"")]
-    Use { name: String },
+    Use {
+        /// The drill's name (`nearsky drill list`).
+        name: String,
+    },
 }
 
 #[derive(Debug, Subcommand)]
@@ -289,8 +313,10 @@ pub enum StationCommand {
         after_help = "Example:\n  nearsky station set --call Q3NET --grid JN17ga --power 50 --antenna \"80/40 m link dipole\""
     )]
     Set {
+        /// The own call sign.
         #[arg(long)]
         call: String,
+        /// The station's Maidenhead locator, e.g. JN17ga.
         #[arg(long)]
         grid: String,
         /// The operator at the key, if not the station's own call.
@@ -302,12 +328,14 @@ pub enum StationCommand {
         /// Antenna, e.g. "80/40 m link dipole, links open for 40 m".
         #[arg(long)]
         antenna: Option<String>,
+        /// Transceiver.
         #[arg(long)]
         rig: Option<String>,
     },
     /// Record that the station moved (portable stations do, during a drill).
     #[command(after_help = "Example:\n  nearsky station move --grid JN17gb --time 14:30")]
     Move {
+        /// The new locator.
         #[arg(long)]
         grid: String,
         /// When it moved, UTC (default: now).
@@ -326,12 +354,15 @@ pub enum RosterCommand {
         after_help = "Example:\n  nearsky roster add Q4SHL --name \"Shelter 1\" --grid JN17wm --role shelter"
     )]
     Add {
+        /// The station's call sign.
         call: String,
         /// Tactical name, e.g. "Shelter 2".
         #[arg(long)]
         name: Option<String>,
+        /// Its locator, for distance and bearing.
         #[arg(long)]
         grid: Option<String>,
+        /// Its part in the net, e.g. shelter, relay.
         #[arg(long)]
         role: Option<String>,
     },
@@ -375,6 +406,7 @@ pub enum ExportFormatArg {
 
 #[derive(Debug, Args)]
 pub struct ExportArgs {
+    /// ADI (tagged text), ADX (XML) or CSV.
     #[arg(long, value_enum, default_value_t)]
     pub format: ExportFormatArg,
     /// Only this drill (default: every drill).
@@ -411,12 +443,13 @@ pub enum ReviewFormat {
 
 #[derive(Debug, Args)]
 pub struct CoverageArgs {
-    /// Drill name (default: the drill in use).
+    /// Drill name (default: the drill in use; `all` for every drill).
     #[arg(long)]
     pub drill: Option<String>,
     /// Only this band.
     #[arg(long)]
     pub band: Option<String>,
+    /// Band × hour (hours), link × hour (links) or distance ring × hour (rings).
     #[arg(long, value_enum, default_value_t)]
     pub view: CoverageView,
     /// Width of the UTC hour bins in minutes (must divide 1440).
@@ -428,12 +461,15 @@ pub struct CoverageArgs {
     /// Sunspot number (12-month smoothed) for the Chapman foE estimate in the evidence.
     #[arg(long)]
     pub sunspots: Option<f64>,
+    /// A table for 80 columns, CSV, JSON (stable shapes, see README) or Markdown.
     #[arg(long, value_enum, default_value_t)]
     pub format: ReviewFormat,
 }
 
 #[derive(Debug, Args)]
 pub struct PlanArgs {
+    /// The drill whose evidence to plan from (default: the drill in use; `all` for every
+    /// drill).
     #[arg(long)]
     pub drill: Option<String>,
     /// Plan for this date: hours move with sunrise and sunset at the net's centre.
@@ -442,18 +478,23 @@ pub struct PlanArgs {
     /// Fewer attempts than this on a band in an hour: not enough evidence.
     #[arg(long, default_value_t = 4)]
     pub min_attempts: u32,
+    /// Width of the UTC hour bins in minutes (must divide 1440).
     #[arg(long, default_value_t = 60)]
     pub bin: u16,
+    /// A table for 80 columns, CSV, JSON (stable shapes, see README) or Markdown.
     #[arg(long, value_enum, default_value_t)]
     pub format: ReviewFormat,
 }
 
 #[derive(Debug, Args)]
 pub struct CrosscheckArgs {
+    /// Drill name (default: the drill in use; `all` for every drill).
     #[arg(long)]
     pub drill: Option<String>,
+    /// Both sides' records within this many minutes are one contact.
     #[arg(long, default_value_t = 10)]
     pub tolerance: u16,
+    /// Text for people, JSON for scripts.
     #[arg(long, value_enum, default_value_t)]
     pub format: TextOrJson,
 }
@@ -506,6 +547,7 @@ pub struct PathArgs {
     /// without --time).
     #[arg(long, value_name = "KM")]
     pub height: Option<f64>,
+    /// Text for people, JSON for scripts.
     #[arg(long, value_enum, default_value_t)]
     pub format: TextOrJson,
 }
@@ -520,6 +562,7 @@ pub struct SunArgs {
     /// Date for sunrise, sunset and twilight (default: the date of --time).
     #[arg(long, value_name = "YYYY-MM-DD")]
     pub date: Option<String>,
+    /// Text for people, JSON for scripts.
     #[arg(long, value_enum, default_value_t)]
     pub format: TextOrJson,
 }
