@@ -281,3 +281,28 @@ fn every_argument_says_what_it_is() {
     }
     assert!(missing.is_empty(), "arguments without help: {missing:#?}");
 }
+
+#[test]
+fn export_for_one_main_log_takes_one_stations_contacts() {
+    // The demo logbook holds every station's records, as a net controller's merged one does.
+    let (_dir, db) = demo_book();
+    let d = db.as_str();
+    let (code, all, err) = run(&["--db", d, "export"], &[]);
+    assert_eq!(code, 0, "{err}");
+    assert!(
+        err.contains("logged by 12 stations") && err.contains("--station CALL"),
+        "{err}"
+    );
+    let (code, one, err) = run(&["--db", d, "export", "--station", "Q4SHL"], &[]);
+    assert_eq!(code, 0, "{err}");
+    assert!(!err.contains("note:"), "{err}");
+    let records = one.matches("<EOR>").count();
+    assert!(
+        records > 10 && records < all.matches("<EOR>").count(),
+        "{records}"
+    );
+    assert_eq!(one.matches("<STATION_CALLSIGN:5>Q4SHL").count(), records);
+    let (code, _, err) = run(&["--db", d, "export", "--station", "Q4 SHL"], &[]);
+    assert_eq!(code, 2);
+    assert!(err.contains("--station") && err.contains("Q4 SHL"), "{err}");
+}

@@ -88,7 +88,7 @@ pub enum Command {
     Import(ImportArgs),
     /// Write contacts as ADIF (ADI, ADX) or CSV for a main station log or a spreadsheet.
     #[command(
-        after_help = "Examples:\n  nearsky export -o drill.adi\n  nearsky export --format csv --include-attempts -o drill.csv"
+        after_help = "Examples:\n  nearsky export -o drill.adi\n  nearsky export --station Q4SHL -o q4shl.adi\n  nearsky export --format csv --include-attempts -o drill.csv"
     )]
     Export(ExportArgs),
     /// Which links worked on which band at which hour.
@@ -412,6 +412,10 @@ pub struct ExportArgs {
     /// Only this drill (default: every drill).
     #[arg(long)]
     pub drill: Option<String>,
+    /// Only what this station logged (Q3NET includes Q3NET/P): for one operator's main log
+    /// from a merged logbook.
+    #[arg(long, value_name = "CALL")]
+    pub station: Option<String>,
     /// Also export failed attempts (marked QSO_COMPLETE NIL and APP_NEARSKY_OUTCOME none).
     #[arg(long)]
     pub include_attempts: bool,

@@ -100,10 +100,32 @@ pub fn export(
     {
         return Err(usage(format!("--drill: drill `{d}` not found")));
     }
+    let station = a
+        .station
+        .as_deref()
+        .map(Callsign::parse)
+        .transpose()
+        .map_err(|e| usage(format!("--station: {e}")))?;
     let q = ContactQuery {
         drill: a.drill.clone(),
+        station,
         ..ContactQuery::default()
     };
+    // A main station log should get one station's contacts: say so when there are several.
+    if q.station.is_none() {
+        let calls = book
+            .logging_calls(&q)
+            .map_err(|e| CliError::Failure(e.into()))?;
+        if calls.len() > 1 {
+            let shown: Vec<&str> = calls.iter().take(4).map(String::as_str).collect();
+            let more = if calls.len() > 4 { ", …" } else { "" };
+            eprintln!(
+                "note: these contacts were logged by {} stations ({}{more}); --station CALL exports one station's, for its main log",
+                calls.len(),
+                shown.join(", ")
+            );
+        }
+    }
     let format = match a.format {
         ExportFormatArg::Adi => ExportFormat::Adi,
         ExportFormatArg::Adx => ExportFormat::Adx,

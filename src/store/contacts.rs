@@ -54,6 +54,9 @@ pub struct ContactQuery {
     /// Drill by name.
     pub drill: Option<String>,
     pub band: Option<Band>,
+    /// Logged by this station: its call is one of the `/`-separated parts of the logging
+    /// call (`Q3NET` matches `Q3NET/P`).
+    pub station: Option<Callsign>,
     /// Start time at or after.
     pub from: Option<DateTime<Utc>>,
     /// Start time before.
@@ -134,6 +137,21 @@ fn filter_sql(q: &ContactQuery, drill_id: Option<i64>) -> (String, Vec<rusqlite:
     if let Some(band) = q.band {
         sql.push_str(" AND c.band = ?");
         values.push(band.name().to_string().into());
+    }
+    if let Some(call) = &q.station {
+        // Call signs hold only letters, digits and `/`, so nothing in them is a LIKE pattern.
+        sql.push_str(
+            " AND (c.own_call = ? OR c.own_call LIKE ? OR c.own_call LIKE ? OR c.own_call LIKE ?)",
+        );
+        let c = call.as_str();
+        for v in [
+            c.to_string(),
+            format!("{c}/%"),
+            format!("%/{c}"),
+            format!("%/{c}/%"),
+        ] {
+            values.push(v.into());
+        }
     }
     if let Some(from) = q.from {
         sql.push_str(" AND c.start_utc >= ?");
@@ -741,6 +759,21 @@ impl Logbook {
             ))?
         };
         Ok((total - deleted).max(0) as u64)
+    }
+
+    /// The calls that logged the contacts `q` selects, in order.
+    pub fn logging_calls(&self, q: &ContactQuery) -> Result<Vec<String>> {
+        let Ok(drill_id) = self.query_drill(q)? else {
+            return Ok(Vec::new());
+        };
+        let (filter, values) = filter_sql(q, drill_id);
+        let mut stmt = self.conn.prepare(&format!(
+            "SELECT DISTINCT c.own_call FROM contact c WHERE 1{filter} ORDER BY 1"
+        ))?;
+        let calls = stmt
+            .query_map(params_from_iter(values), |r| r.get(0))?
+            .collect::<rusqlite::Result<Vec<String>>>()?;
+        Ok(calls)
     }
 
     fn require_reason(reason: &str) -> Result<&str> {

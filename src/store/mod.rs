@@ -506,6 +506,21 @@ mod tests {
                 until: Some(t0 + chrono::Duration::minutes(300)),
                 drill: Some("autumn".into()),
                 include_deleted: true,
+                station: None,
+            },
+            // The base call matches the portable one; a call that only begins the same does not.
+            ContactQuery {
+                station: Callsign::parse("Q2BB").ok(),
+                ..ContactQuery::default()
+            },
+            ContactQuery {
+                station: Callsign::parse("Q1AA").ok(),
+                drill: Some("spring".into()),
+                ..ContactQuery::default()
+            },
+            ContactQuery {
+                station: Callsign::parse("Q1A").ok(),
+                ..ContactQuery::default()
             },
         ];
         for q in &queries {
@@ -523,8 +538,23 @@ mod tests {
             book.for_each_sighting(q, |s| lean.push((s.id, s.start, s.from.to_string())))
                 .unwrap();
             assert_eq!(lean, full, "{q:?}");
-            let expect_some = q.drill.as_deref() != Some("no such drill");
+            let expect_some = q.drill.as_deref() != Some("no such drill")
+                && q.station.as_ref().is_none_or(|s| s.as_str() != "Q1A");
             assert_eq!(!full.is_empty(), expect_some, "{q:?}");
+            if let Some(s) = &q.station {
+                assert!(full.iter().all(|c| c.2 == s.as_str()), "{q:?}");
+            }
+            // The logging calls of what is selected.
+            let mut calls: Vec<String> = full.iter().map(|c| c.2.clone()).collect();
+            calls.sort();
+            calls.dedup();
+            let logged: Vec<String> = book
+                .logging_calls(q)
+                .unwrap()
+                .iter()
+                .map(|c| crate::domain::callsign::base_of(c).to_string())
+                .collect();
+            assert_eq!(logged, calls, "{q:?}");
             // Counting and paging (newest first, 7 at a time) agree with both.
             assert_eq!(book.count(q).unwrap(), full.len() as u64, "{q:?}");
             let mut paged = Vec::new();
