@@ -129,11 +129,19 @@ fn bin_parts(bins: usize, room: usize) -> Vec<std::ops::Range<usize>> {
     (0..parts).map(|i| i * size..(i + 1) * size).collect()
 }
 
-/// `HH:MM–HH:MM UTC` of a run of bins (for a matrix shown in parts).
-fn span_label(c: &Coverage, bins: &std::ops::Range<usize>) -> String {
+/// `, HH:MM–HH:MM UTC` of one part of a matrix shown in several parts; empty when there is
+/// one.
+fn span_label(
+    c: &Coverage,
+    parts: &[std::ops::Range<usize>],
+    bins: &std::ops::Range<usize>,
+) -> String {
+    if parts.len() < 2 {
+        return String::new();
+    }
     let end = bins.end * usize::from(c.config.bin_minutes);
     format!(
-        "{}–{:02}:{:02} UTC",
+        ", {}–{:02}:{:02} UTC",
         c.config.hour_start(bins.start),
         end / 60,
         end % 60
@@ -298,11 +306,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
             // 27 columns of link, km and bearing before the bins.
             let parts = bin_parts(c.config.bins(), 80 - 27);
             for (b, part) in bands.iter().flat_map(|b| parts.iter().map(move |p| (b, p))) {
-                let span = if parts.len() > 1 {
-                    format!(", {}", span_label(&c, part))
-                } else {
-                    String::new()
-                };
+                let span = span_label(&c, &parts, part);
                 if fence {
                     writeln!(out, "### {b}{span}\n\n```").map_err(io)?;
                 } else {
@@ -364,11 +368,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
             // 11 columns of ring before the bins.
             let parts = bin_parts(c.config.bins(), 80 - 11);
             for (b, part) in bands.iter().flat_map(|b| parts.iter().map(move |p| (b, p))) {
-                let span = if parts.len() > 1 {
-                    format!(", {}", span_label(&c, part))
-                } else {
-                    String::new()
-                };
+                let span = span_label(&c, &parts, part);
                 if fence {
                     writeln!(out, "### {b}{span}\n\n```").map_err(io)?;
                 } else {
@@ -595,20 +595,7 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
                 )
                 .map_err(io)?;
                 for r in &p.relays {
-                    let cands = r.candidates_text(3);
-                    let line = format!(
-                        "{} {}-{} on {}: {}",
-                        r.hour_start,
-                        r.a,
-                        r.b,
-                        r.band,
-                        if cands.is_empty() {
-                            "no relay candidate".into()
-                        } else {
-                            cands
-                        }
-                    );
-                    writeln!(out, "{}", wrap(&line, "  ", "      ")).map_err(io)?;
+                    writeln!(out, "{}", wrap(&r.line(3), "  ", "      ")).map_err(io)?;
                 }
             }
         }

@@ -12,15 +12,17 @@ use crate::app::transfer::{self, ExportFormat, ImportOptions};
 use crate::domain::Callsign;
 use crate::store::ContactQuery;
 
+/// The `--station` flag, checked.
+fn station_flag(text: Option<&str>) -> Result<Option<Callsign>, CliError> {
+    text.map(Callsign::parse)
+        .transpose()
+        .map_err(|e| usage(format!("--station: {e}")))
+}
+
 /// Runs `nearsky import`; returns whether any records were rejected.
 pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result<bool, CliError> {
     let mut book = open(db)?;
-    let station = a
-        .station
-        .as_deref()
-        .map(Callsign::parse)
-        .transpose()
-        .map_err(|e| usage(format!("--station: {e}")))?;
+    let station = station_flag(a.station.as_deref())?;
     let opts = ImportOptions {
         station,
         drill: a.drill.clone(),
@@ -100,12 +102,7 @@ pub fn export(
     {
         return Err(usage(format!("--drill: drill `{d}` not found")));
     }
-    let station = a
-        .station
-        .as_deref()
-        .map(Callsign::parse)
-        .transpose()
-        .map_err(|e| usage(format!("--station: {e}")))?;
+    let station = station_flag(a.station.as_deref())?;
     let q = ContactQuery {
         drill: a.drill.clone(),
         station,

@@ -80,6 +80,24 @@ impl RelayNeed {
             .collect();
         parts.join(", ")
     }
+
+    /// One line for a table: `07:00 Q2FIR-Q9RLY on 80m: Q3NET (0.42), …`, with the strongest
+    /// `most` candidates.
+    pub fn line(&self, most: usize) -> String {
+        let cands = self.candidates_text(most);
+        format!(
+            "{} {}-{} on {}: {}",
+            self.hour_start,
+            self.a,
+            self.b,
+            self.band,
+            if cands.is_empty() {
+                "no relay candidate"
+            } else {
+                &cands
+            }
+        )
+    }
 }
 
 /// The plan for the next drill.

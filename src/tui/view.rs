@@ -608,20 +608,7 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                     bold(),
                 )));
                 for r in &plan.relays {
-                    let cands = r.candidates_text(3);
-                    let row = format!(
-                        "{} {}-{} {}: {}",
-                        r.hour_start,
-                        r.a,
-                        r.b,
-                        r.band,
-                        if cands.is_empty() {
-                            "none".into()
-                        } else {
-                            cands
-                        }
-                    );
-                    lines.extend(hanging(&row, text_width, 6));
+                    lines.extend(hanging(&r.line(3), text_width, 6));
                 }
             }
         }
