@@ -271,6 +271,7 @@ fn main() {
     let ctx = nearsky::formats::adif::ImportContext {
         station: None,
         drill: None,
+        default_drill: None,
         file: "bench.adi",
         station_locator: &none,
     };

@@ -27,6 +27,7 @@ fn read_adi(text: &[u8]) -> (Vec<Result<Contact, String>>, Vec<String>) {
     let ctx = ImportContext {
         station: None,
         drill: None,
+        default_drill: None,
         file: "test.adi",
         station_locator: &no_place,
     };
@@ -368,7 +369,7 @@ proptest! {
         }
         let bytes = w.finish().unwrap();
         let mut r = AdxReader::new(&bytes[..]);
-        let ctx = ImportContext { station: None, drill: None, file: "test.adx", station_locator: &no_place };
+        let ctx = ImportContext { station: None, drill: None, default_drill: None, file: "test.adx", station_locator: &no_place };
         let mut rec = RawRecord::default();
         for a in &contacts {
             let n = r.next_record(&mut rec).unwrap();

@@ -306,3 +306,47 @@ fn export_for_one_main_log_takes_one_stations_contacts() {
     assert_eq!(code, 2);
     assert!(err.contains("--station") && err.contains("Q4 SHL"), "{err}");
 }
+
+#[test]
+fn an_import_lands_in_the_drill_in_use_unless_a_record_names_its_own() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    let ok = |args: &[&str]| {
+        let mut all = vec!["--db", d];
+        all.extend(args);
+        let (code, out, err) = run(&all, &[]);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        out
+    };
+    ok(&["station", "set", "--call", "Q3NET", "--grid", "JN17ga"]);
+    ok(&["drill", "new", "Test net"]);
+    // As another program writes it: no drill of nearsky's; then one that names its drill.
+    let file = dir.path().join("q4shl.adi");
+    std::fs::write(
+        &file,
+        "<ADIF_VER:5>3.1.4 <EOH>\n\
+         <CALL:5>Q3NET <QSO_DATE:8>20261201 <TIME_ON:4>0800 <BAND:3>80m <MODE:3>SSB <STATION_CALLSIGN:5>Q4SHL <EOR>\n\
+         <CALL:5>Q7HSP <QSO_DATE:8>20261201 <TIME_ON:4>0805 <BAND:3>40m <MODE:3>SSB <STATION_CALLSIGN:5>Q4SHL <APP_NEARSKY_DRILL:5>Other <EOR>\n",
+    )
+    .unwrap();
+    let out = ok(&["import", file.to_str().unwrap()]);
+    assert!(out.contains("put in `Test net`, the drill in use"), "{out}");
+    let in_use = ok(&["list", "--format", "json"]);
+    let rows: serde_json::Value = serde_json::from_str(&in_use).unwrap();
+    let calls: Vec<&str> = rows
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|r| r["call"].as_str().unwrap())
+        .collect();
+    assert_eq!(calls, ["Q3NET"], "{in_use}");
+    let other = ok(&["list", "--drill", "Other", "--format", "json"]);
+    assert!(other.contains("Q7HSP"), "{other}");
+    // The coverage of the drill in use sees the imported record.
+    let cov = ok(&["coverage", "--view", "links"]);
+    assert!(
+        cov.contains("Q4SHL") || cov.contains("Q3NET-Q4SHL"),
+        "{cov}"
+    );
+}

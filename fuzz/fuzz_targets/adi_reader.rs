@@ -9,7 +9,7 @@ use nearsky::formats::adif::{self, AdiReader, ImportContext, Next, RawRecord};
 fuzz_target!(|data: &[u8]| {
     let none = |_: &Callsign| -> Option<Locator> { None };
     let station = Callsign::parse("Q3NET").ok();
-    let ctx = ImportContext { station: station.as_ref(), drill: None, file: "fuzz.adi", station_locator: &none };
+    let ctx = ImportContext { station: station.as_ref(), drill: None, default_drill: None, file: "fuzz.adi", station_locator: &none };
     let mut r = AdiReader::new(data);
     let mut rec = RawRecord::default();
     // Every record consumes input, so there are never more records than bytes.

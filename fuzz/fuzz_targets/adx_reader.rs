@@ -10,7 +10,7 @@ use nearsky::formats::adif::{self, ImportContext, Next, RawRecord};
 fuzz_target!(|data: &[u8]| {
     let none = |_: &Callsign| -> Option<Locator> { None };
     let station = Callsign::parse("Q3NET").ok();
-    let ctx = ImportContext { station: station.as_ref(), drill: None, file: "fuzz.adx", station_locator: &none };
+    let ctx = ImportContext { station: station.as_ref(), drill: None, default_drill: None, file: "fuzz.adx", station_locator: &none };
     let mut r = AdxReader::new(data);
     let mut rec = RawRecord::default();
     for _ in 0..=data.len() {

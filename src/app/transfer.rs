@@ -20,6 +20,9 @@ pub struct ImportOptions {
     pub station: Option<Callsign>,
     /// Put every record in this drill (created if missing).
     pub drill: Option<String>,
+    /// Put the records that name no drill of their own in this one (which must exist): the
+    /// drill in use, so that a merged log lands where coverage looks.
+    pub default_drill: Option<String>,
     /// Read and check everything, store nothing.
     pub dry_run: bool,
     /// Import the good records of a file that has bad ones (the bad ones are listed).
@@ -198,6 +201,7 @@ fn read_and_check<R: BufRead>(
     let ctx = ImportContext {
         station: opts.station.as_ref(),
         drill: opts.drill.as_deref(),
+        default_drill: opts.default_drill.as_deref(),
         file: file_name,
         station_locator: &lookup,
     };

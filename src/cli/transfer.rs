@@ -23,9 +23,18 @@ fn station_flag(text: Option<&str>) -> Result<Option<Callsign>, CliError> {
 pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result<bool, CliError> {
     let mut book = open(db)?;
     let station = station_flag(a.station.as_deref())?;
+    // Without --drill, records that name no drill go into the drill in use: that is where
+    // coverage, plan and crosscheck look.
+    let default_drill = if a.drill.is_none() {
+        book.current_drill()
+            .map_err(|e| CliError::Failure(e.into()))?
+    } else {
+        None
+    };
     let opts = ImportOptions {
         station,
         drill: a.drill.clone(),
+        default_drill: default_drill.clone(),
         dry_run: a.dry_run,
         skip_bad: a.skip_bad,
     };
@@ -76,6 +85,13 @@ pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result
                 refused.push(r.file.clone());
             }
         }
+    }
+    if let Some(d) = &default_drill {
+        writeln!(
+            out,
+            "drill: records that name none are put in `{d}`, the drill in use (--drill NAME for another)"
+        )
+        .map_err(io)?;
     }
     if !refused.is_empty() {
         return Err(CliError::Failure(anyhow::anyhow!(

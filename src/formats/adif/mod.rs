@@ -264,6 +264,8 @@ pub struct ImportContext<'a> {
     pub station: Option<&'a Callsign>,
     /// The drill to put records in (overrides APP_NEARSKY_DRILL).
     pub drill: Option<&'a str>,
+    /// The drill for records that name none (no APP_NEARSKY_DRILL): the drill in use.
+    pub default_drill: Option<&'a str>,
     /// The file's name, kept as the records' origin.
     pub file: &'a str,
     /// Where the logging station was, when the record lacks MY_GRIDSQUARE.
@@ -548,7 +550,8 @@ pub fn to_contact(
     let drill = ctx
         .drill
         .map(str::to_string)
-        .or_else(|| known.get(K::APP_NEARSKY_DRILL).map(str::to_string));
+        .or_else(|| known.get(K::APP_NEARSKY_DRILL).map(str::to_string))
+        .or_else(|| ctx.default_drill.map(str::to_string));
     let note = known
         .get(K::NOTES_INTL)
         .or_else(|| known.get(K::NOTES))
