@@ -332,6 +332,11 @@ fn an_import_lands_in_the_drill_in_use_unless_a_record_names_its_own() {
     .unwrap();
     let out = ok(&["import", file.to_str().unwrap()]);
     assert!(out.contains("put in `Test net`, the drill in use"), "{out}");
+    // One record went elsewhere, so the import says where each went.
+    assert!(
+        out.contains("  1 into drill `Other`") && out.contains("  1 into drill `Test net`"),
+        "{out}"
+    );
     let in_use = ok(&["list", "--format", "json"]);
     let rows: serde_json::Value = serde_json::from_str(&in_use).unwrap();
     let calls: Vec<&str> = rows

@@ -38,6 +38,8 @@ pub struct ImportReport {
     pub duplicates: usize,
     pub rejected: Vec<RecordError>,
     pub warnings: Vec<String>,
+    /// Records imported (or that a dry run would import) per drill; `None`: in no drill.
+    pub drills: std::collections::BTreeMap<Option<String>, usize>,
     /// Whether the records were stored (false for a dry run, or a file refused whole).
     pub stored: bool,
 }
@@ -137,6 +139,7 @@ pub fn import_file(
                             report.warnings.extend(warnings);
                             if import.add(&c)? {
                                 report.imported += 1;
+                                *report.drills.entry(c.drill.clone()).or_default() += 1;
                             } else {
                                 report.duplicates += 1;
                             }

@@ -70,6 +70,19 @@ pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result
             r.rejected.len()
         )
         .map_err(io)?;
+        // Where the records went: a drill name typed differently at another station would
+        // otherwise split a drill without a word.
+        if r.drills
+            .keys()
+            .any(|d| d.as_ref() != default_drill.as_ref().or(a.drill.as_ref()))
+        {
+            for (d, n) in &r.drills {
+                let drill = d
+                    .as_ref()
+                    .map_or("no drill".to_string(), |d| format!("drill `{d}`"));
+                writeln!(out, "  {n} into {drill}").map_err(io)?;
+            }
+        }
         for e in &r.rejected {
             writeln!(out, "  rejected: {e}").map_err(io)?;
         }
