@@ -989,6 +989,27 @@ mod tests {
         Mark { col, row, len }
     }
 
+    fn texts(lines: Vec<Line<'static>>) -> Vec<String> {
+        lines.into_iter().map(|l| l.to_string()).collect()
+    }
+
+    #[test]
+    fn hanging_lines_break_at_spaces_and_indent_what_follows() {
+        assert_eq!(
+            texts(hanging("one two three four five six", 14, 2)),
+            ["one two three", "  four five", "  six"]
+        );
+        // Short text: one line, as it is (leading spaces kept).
+        assert_eq!(texts(hanging("   note 01:02", 40, 8)), ["   note 01:02"]);
+        // A word longer than a line is cut, and no line is longer than the width.
+        let long = format!("x {} y", "a".repeat(50));
+        let out = texts(hanging(&long, 20, 4));
+        assert!(out.iter().all(|l| l.chars().count() <= 20), "{out:?}");
+        assert_eq!(out.concat().replace(' ', ""), long.replace(' ', ""));
+        // A width too small for the indent still ends.
+        assert!(!hanging("a b c d e f g h", 3, 6).is_empty());
+    }
+
     #[test]
     fn map_labels_go_right_then_left_and_never_cover_each_other() {
         // Labels go right of their markers; a marker right after another's label finds its
