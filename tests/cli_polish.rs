@@ -302,6 +302,26 @@ fn export_for_one_main_log_takes_one_stations_contacts() {
         "{records}"
     );
     assert_eq!(one.matches("<STATION_CALLSIGN:5>Q4SHL").count(), records);
+    // `list` takes the same filter.
+    let (code, listed, err) = run(
+        &[
+            "--db",
+            d,
+            "list",
+            "--station",
+            "Q4SHL",
+            "--format",
+            "json",
+            "--limit",
+            "500",
+        ],
+        &[],
+    );
+    assert_eq!(code, 0, "{err}");
+    let rows: serde_json::Value = serde_json::from_str(&listed).unwrap();
+    let rows = rows.as_array().unwrap();
+    assert!(!rows.is_empty());
+    assert!(rows.iter().all(|r| r["own_call"] == "Q4SHL"), "{listed}");
     let (code, _, err) = run(&["--db", d, "export", "--station", "Q4 SHL"], &[]);
     assert_eq!(code, 2);
     assert!(err.contains("--station") && err.contains("Q4 SHL"), "{err}");

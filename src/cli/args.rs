@@ -202,6 +202,9 @@ pub struct ListArgs {
     /// Only this band.
     #[arg(long)]
     pub band: Option<String>,
+    /// Only what this station logged (Q3NET includes Q3NET/P).
+    #[arg(long, value_name = "CALL")]
+    pub station: Option<String>,
     /// Most contacts to show.
     #[arg(long, default_value_t = 50)]
     pub limit: usize,

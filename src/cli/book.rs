@@ -325,9 +325,11 @@ pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(),
     let book = open(db)?;
     let drill = super::review::drill_name(&book, a.drill.as_deref())?;
     let band = band_flag(a.band.as_deref())?;
+    let station = super::station_flag(a.station.as_deref())?;
     let q = ContactQuery {
         drill,
         band,
+        station,
         include_deleted: a.deleted,
         ..ContactQuery::default()
     };

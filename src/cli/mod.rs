@@ -70,6 +70,15 @@ pub(crate) fn band_flag(text: Option<&str>) -> Result<Option<crate::domain::Band
         .map_err(|e| usage(format!("--band: {e}")))
 }
 
+/// The `--station` flag, checked.
+pub(crate) fn station_flag(
+    text: Option<&str>,
+) -> Result<Option<crate::domain::Callsign>, CliError> {
+    text.map(crate::domain::Callsign::parse)
+        .transpose()
+        .map_err(|e| usage(format!("--station: {e}")))
+}
+
 /// Turns a validation error into a usage error (exit code 2).
 pub(crate) fn usage(e: impl std::fmt::Display) -> CliError {
     CliError::Usage(e.to_string())

@@ -7,17 +7,9 @@ use chrono::{DateTime, Utc};
 
 use super::args::{ExportArgs, ExportFormatArg, ImportArgs};
 use super::book::open;
-use super::{CliError, io, usage};
+use super::{CliError, io, station_flag, usage};
 use crate::app::transfer::{self, ExportFormat, ImportOptions};
-use crate::domain::Callsign;
 use crate::store::ContactQuery;
-
-/// The `--station` flag, checked.
-fn station_flag(text: Option<&str>) -> Result<Option<Callsign>, CliError> {
-    text.map(Callsign::parse)
-        .transpose()
-        .map_err(|e| usage(format!("--station: {e}")))
-}
 
 /// Runs `nearsky import`; returns whether any records were rejected.
 pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result<bool, CliError> {
