@@ -375,3 +375,24 @@ fn an_import_lands_in_the_drill_in_use_unless_a_record_names_its_own() {
         "{cov}"
     );
 }
+
+#[test]
+fn counts_of_one_read_as_one() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    let file = dir.path().join("one.adi");
+    let f = file.to_str().unwrap();
+    for args in [
+        vec!["station", "set", "--call", "Q3NET", "--grid", "JN17ga"],
+        vec!["log", "Q4SHL", "--freq", "7.1", "--mode", "LSB"],
+    ] {
+        let mut all = vec!["--db", d];
+        all.extend(args);
+        assert_eq!(run(&all, &[]).0, 0);
+    }
+    let (_, _, err) = run(&["--db", d, "export", "-o", f], &[]);
+    assert!(err.contains("wrote 1 contact to"), "{err}");
+    let (_, out, _) = run(&["--db", d, "import", f], &[]);
+    assert!(out.contains(": 1 record read;"), "{out}");
+}

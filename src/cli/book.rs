@@ -12,7 +12,7 @@ use super::args::{
     DeleteArgs, DrillCommand, EditArgs, ListArgs, ListFormat, LogArgs, NoteArgs, RosterCommand,
     StationCommand, TextOrJson, WriterArgs,
 };
-use super::{CliError, band_flag, clip, io, usage};
+use super::{CliError, band_flag, clip, count_of, io, usage};
 use crate::domain::caution::transmit_cautions;
 use crate::domain::geo;
 use crate::domain::{
@@ -564,7 +564,19 @@ pub fn drill(
             writeln!(out, "drill `{}` created and in use", d.name).map_err(io)?;
             if let Some(slots) = schedule {
                 book.set_schedule(&d.name, &slots).map_err(st)?;
-                writeln!(out, "band schedule: {} slots from the plan", slots.len()).map_err(io)?;
+                writeln!(
+                    out,
+                    "band schedule: {} from the plan",
+                    count_of(slots.len() as u64, "slot")
+                )
+                .map_err(io)?;
+                if slots.iter().all(|s| s.primary.is_none()) {
+                    writeln!(
+                        out,
+                        "  the plan names no band for any hour (not enough evidence): log the drill as it goes"
+                    )
+                    .map_err(io)?;
+                }
                 for s in &slots {
                     let b = |b: Option<crate::domain::Band>| {
                         b.map_or("-".to_string(), |b| b.to_string())

@@ -48,6 +48,16 @@ impl CliError {
     }
 }
 
+/// `1 contact`, `2 contacts`: a count with its noun (`noun` takes an `s` for the plural).
+pub(crate) fn count_of(n: impl Into<u64>, noun: &str) -> String {
+    let n = n.into();
+    if n == 1 {
+        format!("1 {noun}")
+    } else {
+        format!("{n} {noun}s")
+    }
+}
+
 /// `s` cut to `n` characters for a table column, with `…` where it was cut.
 pub(crate) fn clip(s: &str, n: usize) -> String {
     if s.chars().count() <= n {

@@ -7,7 +7,7 @@ use chrono::{DateTime, Utc};
 
 use super::args::{ExportArgs, ExportFormatArg, ImportArgs};
 use super::book::open;
-use super::{CliError, io, station_flag, usage};
+use super::{CliError, count_of, io, station_flag, usage};
 use crate::app::transfer::{self, ExportFormat, ImportOptions};
 use crate::store::ContactQuery;
 
@@ -54,9 +54,9 @@ pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result
         };
         writeln!(
             out,
-            "{}: {} records read; {verb} {}, duplicates skipped {}, rejected {}",
+            "{}: {} read; {verb} {}, duplicates skipped {}, rejected {}",
             r.file,
-            r.read,
+            count_of(r.read as u64, "record"),
             r.imported,
             r.duplicates,
             r.rejected.len()
@@ -176,7 +176,11 @@ pub fn export(
                 now,
             );
             if let Ok(n) = &n {
-                eprintln!("wrote {n} contacts to {}", path.display());
+                eprintln!(
+                    "wrote {} to {}",
+                    count_of(*n as u64, "contact"),
+                    path.display()
+                );
             }
             n
         }
