@@ -396,3 +396,94 @@ fn counts_of_one_read_as_one() {
     let (_, out, _) = run(&["--db", d, "import", f], &[]);
     assert!(out.contains(": 1 record read;"), "{out}");
 }
+
+#[test]
+fn records_imported_into_the_wrong_drill_can_be_moved_with_their_history() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    let ok = |args: &[&str]| {
+        let mut all = vec!["--db", d];
+        all.extend(args);
+        let (code, out, err) = run(&all, &[]);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        out
+    };
+    ok(&["station", "set", "--call", "Q3NET", "--grid", "JN17ga"]);
+    ok(&["drill", "new", "Autumn exercise"]);
+    // The next drill is made (and put in use) before last drill's logs are merged.
+    ok(&["drill", "new", "Winter exercise"]);
+    let file = dir.path().join("q4shl.adi");
+    std::fs::write(
+        &file,
+        "<CALL:5>Q3NET <QSO_DATE:8>20261201 <TIME_ON:4>0800 <BAND:3>80m <MODE:3>SSB <STATION_CALLSIGN:5>Q4SHL <EOR>\n\
+         <CALL:5>Q7HSP <QSO_DATE:8>20261201 <TIME_ON:4>0805 <BAND:3>40m <MODE:3>SSB <STATION_CALLSIGN:5>Q4SHL <EOR>\n",
+    )
+    .unwrap();
+    let out = ok(&["import", file.to_str().unwrap()]);
+    assert!(
+        out.contains("`Winter exercise`") && out.contains("drill move"),
+        "{out}"
+    );
+    // Importing again into the right drill only finds duplicates; moving them works.
+    let again = ok(&[
+        "import",
+        file.to_str().unwrap(),
+        "--drill",
+        "Autumn exercise",
+    ]);
+    assert!(
+        again.contains("imported 0, duplicates skipped 2"),
+        "{again}"
+    );
+    let moved = ok(&[
+        "drill",
+        "move",
+        "Autumn exercise",
+        "--file",
+        file.to_str().unwrap(),
+        "--reason",
+        "imported into the wrong drill",
+    ]);
+    assert!(moved.contains("moved 2 contacts"), "{moved}");
+    let json = |drill: &str| -> Vec<serde_json::Value> {
+        let out = ok(&["list", "--drill", drill, "--format", "json"]);
+        serde_json::from_str::<serde_json::Value>(&out)
+            .unwrap()
+            .as_array()
+            .unwrap()
+            .clone()
+    };
+    let autumn = json("Autumn exercise");
+    assert_eq!(autumn.len(), 2);
+    // Each keeps its previous version: the revision went up by one.
+    assert!(autumn.iter().all(|r| r["revision"] == 2), "{autumn:?}");
+    assert!(json("Winter exercise").is_empty());
+    // Nothing left to move; an unknown drill is refused.
+    let none = ok(&[
+        "drill",
+        "move",
+        "Autumn exercise",
+        "--file",
+        "q4shl.adi",
+        "--reason",
+        "x",
+    ]);
+    assert!(none.contains("moved 0 contacts"), "{none}");
+    let (code, _, err) = run(
+        &[
+            "--db",
+            d,
+            "drill",
+            "move",
+            "Spring",
+            "--file",
+            "q4shl.adi",
+            "--reason",
+            "x",
+        ],
+        &[],
+    );
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("drill `Spring` not found"), "{err}");
+}

@@ -307,6 +307,24 @@ pub enum DrillCommand {
         /// The drill's name (`nearsky drill list`).
         name: String,
     },
+    /// Move the contacts imported from a file into a drill (after an import made while
+    /// another drill was in use); each keeps its previous version with the reason.
+    #[command(
+        after_help = "Example:\n  nearsky drill move \"Autumn exercise\" --file shelter1.adi --reason \"imported into the wrong drill\""
+    )]
+    Move {
+        /// The drill to move them into (it must exist).
+        name: String,
+        /// The imported file (its name is what the import recorded).
+        #[arg(long, value_name = "FILE")]
+        file: PathBuf,
+        /// Only contacts now in this drill (default: in any drill).
+        #[arg(long, value_name = "DRILL")]
+        from: Option<String>,
+        /// Why they move (kept in each contact's revision trail).
+        #[arg(long)]
+        reason: String,
+    },
 }
 
 #[derive(Debug, Subcommand)]

@@ -617,6 +617,29 @@ pub fn drill(
             book.use_drill(name).map_err(st)?;
             writeln!(out, "drill `{name}` in use").map_err(io)?;
         }
+        DrillCommand::Move {
+            name,
+            file,
+            from,
+            reason,
+        } => {
+            let from = super::review::drill_name(&book, from.as_deref().or(Some("all")))?;
+            let origin = file.file_name().map_or(file.display().to_string(), |f| {
+                f.to_string_lossy().into_owned()
+            });
+            let q = ContactQuery {
+                drill: from,
+                origin_file: Some(origin.clone()),
+                ..ContactQuery::default()
+            };
+            let moved = book.move_to_drill(&q, name, reason).map_err(st)?;
+            writeln!(
+                out,
+                "moved {} imported from {origin} into drill `{name}`; the previous versions are kept",
+                count_of(moved as u64, "contact")
+            )
+            .map_err(io)?;
+        }
     }
     Ok(())
 }

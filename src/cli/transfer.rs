@@ -94,7 +94,7 @@ pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result
     if let Some(d) = &default_drill {
         writeln!(
             out,
-            "drill: records that name none are put in `{d}`, the drill in use (--drill NAME for another)"
+            "drill: records that name none are put in `{d}`, the drill in use (--drill NAME for\n  another; `nearsky drill move` moves them if this was the wrong one)"
         )
         .map_err(io)?;
     }

@@ -57,6 +57,8 @@ pub struct ContactQuery {
     /// Logged by this station: its call is one of the `/`-separated parts of the logging
     /// call (`Q3NET` matches `Q3NET/P`).
     pub station: Option<Callsign>,
+    /// Imported from a file of this name (as the import recorded it: the name, no folder).
+    pub origin_file: Option<String>,
     /// Start time at or after.
     pub from: Option<DateTime<Utc>>,
     /// Start time before.
@@ -152,6 +154,10 @@ fn filter_sql(q: &ContactQuery, drill_id: Option<i64>) -> (String, Vec<rusqlite:
         ] {
             values.push(v.into());
         }
+    }
+    if let Some(f) = &q.origin_file {
+        sql.push_str(" AND c.origin_file = ?");
+        values.push(f.clone().into());
     }
     if let Some(from) = q.from {
         sql.push_str(" AND c.start_utc >= ?");
@@ -835,6 +841,38 @@ impl Logbook {
         )?;
         tx.commit()?;
         Ok(())
+    }
+
+    /// Moves the contacts `q` selects into drill `to` (which must exist), each keeping its
+    /// previous version with `reason`, all in one transaction: for records imported while the
+    /// wrong drill was in use. Deleted contacts and those already in `to` stay as they are.
+    /// Returns how many moved.
+    pub fn move_to_drill(&mut self, q: &ContactQuery, to: &str, reason: &str) -> Result<usize> {
+        let reason = Self::require_reason(reason)?;
+        let live = ContactQuery {
+            include_deleted: false,
+            ..q.clone()
+        };
+        let mut selected = Vec::new();
+        self.for_each_contact(&live, |s| {
+            if s.contact.drill.as_deref() != Some(to) {
+                selected.push(s);
+            }
+            Ok(())
+        })?;
+        let tx = self
+            .conn
+            .transaction_with_behavior(TransactionBehavior::Immediate)?;
+        let drill = Self::named_drill_id(&tx, to)?;
+        for s in &selected {
+            let row = Self::keep_revision(&tx, s, "edit", reason)?;
+            tx.execute(
+                "UPDATE contact SET drill_id = ?2, revision = revision + 1 WHERE id = ?1",
+                params![row, drill],
+            )?;
+        }
+        tx.commit()?;
+        Ok(selected.len())
     }
 
     /// Marks a contact deleted (it stays in the file), keeping the version and the reason.

@@ -507,6 +507,7 @@ mod tests {
                 drill: Some("autumn".into()),
                 include_deleted: true,
                 station: None,
+                origin_file: None,
             },
             // The base call matches the portable one; a call that only begins the same does not.
             ContactQuery {
@@ -520,6 +521,11 @@ mod tests {
             },
             ContactQuery {
                 station: Callsign::parse("Q1A").ok(),
+                ..ContactQuery::default()
+            },
+            // Logged here, so from no file.
+            ContactQuery {
+                origin_file: Some("q1aa.adi".into()),
                 ..ContactQuery::default()
             },
         ];
@@ -539,7 +545,8 @@ mod tests {
                 .unwrap();
             assert_eq!(lean, full, "{q:?}");
             let expect_some = q.drill.as_deref() != Some("no such drill")
-                && q.station.as_ref().is_none_or(|s| s.as_str() != "Q1A");
+                && q.station.as_ref().is_none_or(|s| s.as_str() != "Q1A")
+                && q.origin_file.is_none();
             assert_eq!(!full.is_empty(), expect_some, "{q:?}");
             if let Some(s) = &q.station {
                 assert!(full.iter().all(|c| c.2 == s.as_str()), "{q:?}");
