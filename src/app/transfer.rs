@@ -139,7 +139,13 @@ pub fn import_file(
                             report.warnings.extend(warnings);
                             if import.add(&c)? {
                                 report.imported += 1;
-                                *report.drills.entry(c.drill.clone()).or_default() += 1;
+                                // No copy of the drill's name but for the first record.
+                                match report.drills.get_mut(&c.drill) {
+                                    Some(n) => *n += 1,
+                                    None => {
+                                        report.drills.insert(c.drill.clone(), 1);
+                                    }
+                                }
                             } else {
                                 report.duplicates += 1;
                             }
