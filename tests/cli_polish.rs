@@ -459,6 +459,14 @@ fn records_imported_into_the_wrong_drill_can_be_moved_with_their_history() {
     // Each keeps its previous version: the revision went up by one.
     assert!(autumn.iter().all(|r| r["revision"] == 2), "{autumn:?}");
     assert!(json("Winter exercise").is_empty());
+    // The drill list says where the contacts are.
+    let drills = ok(&["drill", "list"]);
+    assert!(
+        drills.contains("  Autumn exercise: 2 contacts")
+            && drills.contains("* Winter exercise: 0 contacts")
+            && !drills.contains("in no drill"),
+        "{drills}"
+    );
     // Nothing left to move; an unknown drill is refused.
     let none = ok(&[
         "drill",
@@ -486,4 +494,28 @@ fn records_imported_into_the_wrong_drill_can_be_moved_with_their_history() {
     );
     assert_eq!(code, 2, "{err}");
     assert!(err.contains("drill `Spring` not found"), "{err}");
+}
+
+#[test]
+fn the_drill_list_counts_contacts_in_no_drill_too() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    for args in [
+        vec!["station", "set", "--call", "Q3NET", "--grid", "JN17ga"],
+        // Logged before any drill exists: in no drill.
+        vec!["log", "Q4SHL", "--freq", "7.1", "--mode", "LSB"],
+        vec!["drill", "new", "Autumn exercise"],
+        vec!["log", "Q4SHL", "--freq", "3.6", "--mode", "LSB"],
+        vec!["log", "Q7HSP", "--freq", "3.6", "--mode", "LSB"],
+    ] {
+        let mut all = vec!["--db", d];
+        all.extend(args);
+        assert_eq!(run(&all, &[]).0, 0);
+    }
+    let (_, out, _) = run(&["--db", d, "drill", "list"], &[]);
+    assert_eq!(
+        out, "* Autumn exercise: 2 contacts\n  (in no drill: 1 contact)\n",
+        "{out}"
+    );
 }

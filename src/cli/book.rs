@@ -596,6 +596,7 @@ pub fn drill(
         }
         DrillCommand::List => {
             let current = book.current_drill().map_err(st)?;
+            let mut in_drills = 0;
             for d in book.drills().map_err(st)? {
                 let mark = if current.as_deref() == Some(d.name.as_str()) {
                     "*"
@@ -610,7 +611,29 @@ pub fn drill(
                     .net_control
                     .map(|c| format!(", net control {c}"))
                     .unwrap_or_default();
-                writeln!(out, "{mark} {}{when}{ncs}", d.name).map_err(io)?;
+                let n = book
+                    .count(&ContactQuery {
+                        drill: Some(d.name.clone()),
+                        ..ContactQuery::default()
+                    })
+                    .map_err(st)?;
+                in_drills += n;
+                writeln!(out, "{mark} {}: {}", d.name, count_of(n, "contact")).map_err(io)?;
+                // When and who, on a line of their own (80 columns).
+                let detail = format!("{when}{ncs}");
+                if let Some(detail) = detail.strip_prefix(", ").or(detail.strip_prefix(' ')) {
+                    writeln!(out, "    {detail}").map_err(io)?;
+                }
+            }
+            // Contacts in no drill (imported or logged while none was in use).
+            let all = book.count(&ContactQuery::default()).map_err(st)?;
+            if all > in_drills {
+                writeln!(
+                    out,
+                    "  (in no drill: {})",
+                    count_of(all - in_drills, "contact")
+                )
+                .map_err(io)?;
             }
         }
         DrillCommand::Use { name } => {
