@@ -519,3 +519,34 @@ fn the_drill_list_counts_contacts_in_no_drill_too() {
         "{out}"
     );
 }
+
+#[test]
+fn a_refused_file_says_nothing_was_stored() {
+    let dir = tempfile::tempdir().unwrap();
+    let db = dir.path().join("book.db");
+    let d = db.to_str().unwrap();
+    for args in [
+        vec!["station", "set", "--call", "Q3NET", "--grid", "JN17ga"],
+        vec!["drill", "new", "Autumn exercise"],
+    ] {
+        let mut all = vec!["--db", d];
+        all.extend(args);
+        assert_eq!(run(&all, &[]).0, 0);
+    }
+    let file = dir.path().join("mixed.adi");
+    std::fs::write(
+        &file,
+        "<CALL:5>Q3NET <QSO_DATE:8>20261201 <TIME_ON:4>0800 <BAND:3>80m <MODE:3>SSB <EOR>\n\
+         <CALL:5>Q3NET <QSO_DATE:8>20261201 <TIME_ON:4>0810 <BAND:3>80m <MODE:3>SSB <STATION_CALLSIGN:5>Q4SHL <EOR>\n",
+    )
+    .unwrap();
+    let (code, out, err) = run(&["--db", d, "import", file.to_str().unwrap()], &[]);
+    assert_eq!(code, 1, "{err}");
+    assert!(
+        out.contains("2 records read; rejected 1, so nothing was stored (1 would have been imported, 0 duplicates)"),
+        "{out}"
+    );
+    // Nothing landed, so no word about where it would have gone.
+    assert!(!out.contains("drill: records"), "{out}");
+    assert!(err.contains("--skip-bad"), "{err}");
+}

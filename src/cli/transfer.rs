@@ -32,6 +32,8 @@ pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result
     };
     let tty = std::io::stderr().is_terminal();
     let mut any_rejected = false;
+    // Whether any record was (or, in a dry run, would be) stored.
+    let mut landed = false;
     let mut refused = Vec::new();
     for f in &a.files {
         let name = f.display().to_string();
@@ -45,23 +47,34 @@ pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result
         if tty && r.read >= 5000 {
             eprintln!();
         }
-        let verb = if a.dry_run {
-            "would import"
-        } else if r.stored {
-            "imported"
+        let read = count_of(r.read as u64, "record");
+        if a.dry_run || r.stored {
+            let verb = if a.dry_run {
+                "would import"
+            } else {
+                "imported"
+            };
+            writeln!(
+                out,
+                "{}: {read} read; {verb} {}, duplicates skipped {}, rejected {}",
+                r.file,
+                r.imported,
+                r.duplicates,
+                r.rejected.len()
+            )
+            .map_err(io)?;
+            landed |= r.imported > 0;
         } else {
-            "not imported"
-        };
-        writeln!(
-            out,
-            "{}: {} read; {verb} {}, duplicates skipped {}, rejected {}",
-            r.file,
-            count_of(r.read as u64, "record"),
-            r.imported,
-            r.duplicates,
-            r.rejected.len()
-        )
-        .map_err(io)?;
+            writeln!(
+                out,
+                "{}: {read} read; rejected {}, so nothing was stored ({} would have been imported, {} duplicates)",
+                r.file,
+                r.rejected.len(),
+                r.imported,
+                r.duplicates
+            )
+            .map_err(io)?;
+        }
         // Where the records went: a drill name typed differently at another station would
         // otherwise split a drill without a word.
         if r.drills
@@ -91,7 +104,7 @@ pub fn import(out: &mut impl Write, db: Option<&Path>, a: &ImportArgs) -> Result
             }
         }
     }
-    if let Some(d) = &default_drill {
+    if let Some(d) = default_drill.as_ref().filter(|_| landed) {
         writeln!(
             out,
             "drill: records that name none are put in `{d}`, the drill in use (--drill NAME for\n  another; `nearsky drill move` moves them if this was the wrong one)"
