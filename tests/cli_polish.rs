@@ -152,6 +152,36 @@ fn demo_book() -> (tempfile::TempDir, String) {
     (dir, db)
 }
 
+/// A fresh logbook in a temporary directory, with the own station Q3NET at JN17ga.
+struct Book {
+    dir: tempfile::TempDir,
+    db: String,
+}
+
+impl Book {
+    fn with_station() -> Book {
+        let dir = tempfile::tempdir().unwrap();
+        let db = dir.path().join("book.db").to_str().unwrap().to_string();
+        let book = Book { dir, db };
+        book.ok(&["station", "set", "--call", "Q3NET", "--grid", "JN17ga"]);
+        book
+    }
+
+    /// Runs a command on this logbook: (exit code, stdout, stderr).
+    fn run(&self, args: &[&str]) -> (i32, String, String) {
+        let mut all = vec!["--db", self.db.as_str()];
+        all.extend(args);
+        run(&all, &[])
+    }
+
+    /// Runs a command that must succeed; its stdout.
+    fn ok(&self, args: &[&str]) -> String {
+        let (code, out, err) = self.run(args);
+        assert_eq!(code, 0, "{args:?}: {err}");
+        out
+    }
+}
+
 #[test]
 fn a_reader_that_stops_early_is_not_an_error() {
     // `nearsky export | head -1`: the pipe closes under the writer.
@@ -223,23 +253,11 @@ fn an_empty_drill_in_use_is_pointed_out_on_stderr() {
 #[test]
 fn logging_on_60_m_above_15_w_or_off_the_segment_is_cautioned_not_refused() {
     // The limit and segment of ITU Radio Regulations footnote 5.133B (WRC-15).
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    let (code, _, err) = run(
-        &[
-            "--db", d, "station", "set", "--call", "Q3NET", "--grid", "JN17ga",
-        ],
-        &[],
-    );
-    assert_eq!(code, 0, "{err}");
+    let book = Book::with_station();
     let log = |freq: &str, power: &str| {
-        run(
-            &[
-                "--db", d, "log", "Q4SHL", "--freq", freq, "--mode", "USB", "--power", power,
-            ],
-            &[],
-        )
+        book.run(&[
+            "log", "Q4SHL", "--freq", freq, "--mode", "USB", "--power", power,
+        ])
     };
     let (code, out, err) = log("5.3625", "100");
     assert_eq!(code, 0, "{err}");
@@ -329,17 +347,9 @@ fn export_for_one_main_log_takes_one_stations_contacts() {
 
 #[test]
 fn an_import_lands_in_the_drill_in_use_unless_a_record_names_its_own() {
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    let ok = |args: &[&str]| {
-        let mut all = vec!["--db", d];
-        all.extend(args);
-        let (code, out, err) = run(&all, &[]);
-        assert_eq!(code, 0, "{args:?}: {err}");
-        out
-    };
-    ok(&["station", "set", "--call", "Q3NET", "--grid", "JN17ga"]);
+    let book = Book::with_station();
+    let dir = &book.dir;
+    let ok = |args: &[&str]| book.ok(args);
     ok(&["drill", "new", "Test net"]);
     // As another program writes it: no drill of nearsky's; then one that names its drill.
     let file = dir.path().join("q4shl.adi");
@@ -378,38 +388,21 @@ fn an_import_lands_in_the_drill_in_use_unless_a_record_names_its_own() {
 
 #[test]
 fn counts_of_one_read_as_one() {
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    let file = dir.path().join("one.adi");
+    let book = Book::with_station();
+    let file = book.dir.path().join("one.adi");
     let f = file.to_str().unwrap();
-    for args in [
-        vec!["station", "set", "--call", "Q3NET", "--grid", "JN17ga"],
-        vec!["log", "Q4SHL", "--freq", "7.1", "--mode", "LSB"],
-    ] {
-        let mut all = vec!["--db", d];
-        all.extend(args);
-        assert_eq!(run(&all, &[]).0, 0);
-    }
-    let (_, _, err) = run(&["--db", d, "export", "-o", f], &[]);
+    book.ok(&["log", "Q4SHL", "--freq", "7.1", "--mode", "LSB"]);
+    let (_, _, err) = book.run(&["export", "-o", f]);
     assert!(err.contains("wrote 1 contact to"), "{err}");
-    let (_, out, _) = run(&["--db", d, "import", f], &[]);
+    let (_, out, _) = book.run(&["import", f]);
     assert!(out.contains(": 1 record read;"), "{out}");
 }
 
 #[test]
 fn records_imported_into_the_wrong_drill_can_be_moved_with_their_history() {
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    let ok = |args: &[&str]| {
-        let mut all = vec!["--db", d];
-        all.extend(args);
-        let (code, out, err) = run(&all, &[]);
-        assert_eq!(code, 0, "{args:?}: {err}");
-        out
-    };
-    ok(&["station", "set", "--call", "Q3NET", "--grid", "JN17ga"]);
+    let book = Book::with_station();
+    let (dir, d) = (&book.dir, book.db.as_str());
+    let ok = |args: &[&str]| book.ok(args);
     ok(&["drill", "new", "Autumn exercise"]);
     // The next drill is made (and put in use) before last drill's logs are merged.
     ok(&["drill", "new", "Winter exercise"]);
@@ -498,22 +491,17 @@ fn records_imported_into_the_wrong_drill_can_be_moved_with_their_history() {
 
 #[test]
 fn the_drill_list_counts_contacts_in_no_drill_too() {
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
+    let book = Book::with_station();
     for args in [
-        vec!["station", "set", "--call", "Q3NET", "--grid", "JN17ga"],
         // Logged before any drill exists: in no drill.
         vec!["log", "Q4SHL", "--freq", "7.1", "--mode", "LSB"],
         vec!["drill", "new", "Autumn exercise"],
         vec!["log", "Q4SHL", "--freq", "3.6", "--mode", "LSB"],
         vec!["log", "Q7HSP", "--freq", "3.6", "--mode", "LSB"],
     ] {
-        let mut all = vec!["--db", d];
-        all.extend(args);
-        assert_eq!(run(&all, &[]).0, 0);
+        book.ok(&args);
     }
-    let (_, out, _) = run(&["--db", d, "drill", "list"], &[]);
+    let out = book.ok(&["drill", "list"]);
     assert_eq!(
         out, "* Autumn exercise: 2 contacts\n  (in no drill: 1 contact)\n",
         "{out}"
@@ -522,25 +510,16 @@ fn the_drill_list_counts_contacts_in_no_drill_too() {
 
 #[test]
 fn a_refused_file_says_nothing_was_stored() {
-    let dir = tempfile::tempdir().unwrap();
-    let db = dir.path().join("book.db");
-    let d = db.to_str().unwrap();
-    for args in [
-        vec!["station", "set", "--call", "Q3NET", "--grid", "JN17ga"],
-        vec!["drill", "new", "Autumn exercise"],
-    ] {
-        let mut all = vec!["--db", d];
-        all.extend(args);
-        assert_eq!(run(&all, &[]).0, 0);
-    }
-    let file = dir.path().join("mixed.adi");
+    let book = Book::with_station();
+    book.ok(&["drill", "new", "Autumn exercise"]);
+    let file = book.dir.path().join("mixed.adi");
     std::fs::write(
         &file,
         "<CALL:5>Q3NET <QSO_DATE:8>20261201 <TIME_ON:4>0800 <BAND:3>80m <MODE:3>SSB <EOR>\n\
          <CALL:5>Q3NET <QSO_DATE:8>20261201 <TIME_ON:4>0810 <BAND:3>80m <MODE:3>SSB <STATION_CALLSIGN:5>Q4SHL <EOR>\n",
     )
     .unwrap();
-    let (code, out, err) = run(&["--db", d, "import", file.to_str().unwrap()], &[]);
+    let (code, out, err) = book.run(&["import", file.to_str().unwrap()]);
     assert_eq!(code, 1, "{err}");
     assert!(
         out.contains("2 records read; rejected 1, so nothing was stored (1 would have been imported, 0 duplicates)"),
