@@ -263,16 +263,37 @@ pub fn export(
     q: &ContactQuery,
     include_attempts: bool,
     format: ExportFormat,
-    mut out: impl Write,
+    out: impl Write,
     created: DateTime<Utc>,
 ) -> Result<usize, TransferError> {
+    export_report(book, q, include_attempts, format, out, created).map(|e| e.written)
+}
+
+/// What an export wrote.
+#[derive(Debug, Default)]
+pub struct Exported {
+    pub written: usize,
+    /// The base calls of the stations that logged what was written, sorted.
+    pub stations: Vec<String>,
+}
+
+/// [`export`], also telling which stations logged the contacts written (a main station log
+/// should receive one station's).
+pub fn export_report(
+    book: &Logbook,
+    q: &ContactQuery,
+    include_attempts: bool,
+    format: ExportFormat,
+    mut out: impl Write,
+    created: DateTime<Utc>,
+) -> Result<Exported, TransferError> {
     let io_err = |source| TransferError::Io {
         path: "output".into(),
         source,
     };
     let (send, receive) = std::sync::mpsc::sync_channel::<Vec<StoredContact>>(4);
     let (send_bytes, bytes) = std::sync::mpsc::channel::<Vec<u8>>();
-    std::thread::scope(|scope| -> Result<usize, TransferError> {
+    std::thread::scope(|scope| -> Result<Exported, TransferError> {
         let formatter = scope.spawn(move || -> io::Result<()> {
             let mut sink = Sink::new(format, created)?;
             for batch in receive {
@@ -287,6 +308,7 @@ pub fn export(
             Ok(())
         });
         let mut n = 0;
+        let mut stations = std::collections::HashSet::new();
         let mut batch = Vec::with_capacity(EXPORT_BATCH);
         // A failed write to the output, kept as it is (a closed pipe is told apart from
         // other failures by its kind).
@@ -294,6 +316,10 @@ pub fn export(
         let written = book.for_each_contact(q, |s| {
             if include_attempts || s.contact.outcome.made_contact() {
                 n += 1;
+                let base = s.contact.own.call.base();
+                if !stations.contains(base) {
+                    stations.insert(base.to_string());
+                }
                 batch.push(s);
             }
             if batch.len() == EXPORT_BATCH {
@@ -334,7 +360,12 @@ pub fn export(
         written?;
         rest.map_err(io_err)?;
         out.flush().map_err(io_err)?;
-        Ok(n)
+        let mut stations: Vec<String> = stations.into_iter().collect();
+        stations.sort();
+        Ok(Exported {
+            written: n,
+            stations,
+        })
     })
 }
 

@@ -142,28 +142,13 @@ pub fn export(
         station,
         ..ContactQuery::default()
     };
-    // A main station log should get one station's contacts: say so when there are several.
-    if q.station.is_none() {
-        let calls = book
-            .logging_calls(&q)
-            .map_err(|e| CliError::Failure(e.into()))?;
-        if calls.len() > 1 {
-            let shown: Vec<&str> = calls.iter().take(4).map(String::as_str).collect();
-            let more = if calls.len() > 4 { ", …" } else { "" };
-            eprintln!(
-                "note: these contacts were logged by {} stations ({}{more}); --station CALL exports one station's, for its main log",
-                calls.len(),
-                shown.join(", ")
-            );
-        }
-    }
     let format = match a.format {
         ExportFormatArg::Adi => ExportFormat::Adi,
         ExportFormatArg::Adx => ExportFormat::Adx,
         ExportFormatArg::Csv => ExportFormat::Csv,
     };
-    let n = match &a.output {
-        None => transfer::export(
+    let done = match &a.output {
+        None => transfer::export_report(
             &book,
             &q,
             a.include_attempts,
@@ -180,7 +165,7 @@ pub fn export(
             }
             let f = std::fs::File::create(path)
                 .map_err(|e| CliError::Failure(anyhow::anyhow!("{}: {e}", path.display())))?;
-            let n = transfer::export(
+            let done = transfer::export_report(
                 &book,
                 &q,
                 a.include_attempts,
@@ -188,15 +173,27 @@ pub fn export(
                 std::io::BufWriter::new(f),
                 now,
             );
-            if let Ok(n) = &n {
+            if let Ok(e) = &done {
                 eprintln!(
                     "wrote {} to {}",
-                    count_of(*n as u64, "contact"),
+                    count_of(e.written as u64, "contact"),
                     path.display()
                 );
             }
-            n
+            done
         }
     };
-    n.map(|_| ()).map_err(|e| CliError::Failure(e.into()))
+    let done = done.map_err(|e| CliError::Failure(e.into()))?;
+    // A main station log should get one station's contacts: say so when there are several.
+    let calls = &done.stations;
+    if calls.len() > 1 {
+        let shown: Vec<&str> = calls.iter().take(4).map(String::as_str).collect();
+        let more = if calls.len() > 4 { ", …" } else { "" };
+        eprintln!(
+            "note: these contacts were logged by {} stations ({}{more}); --station CALL exports one station's, for its main log",
+            calls.len(),
+            shown.join(", ")
+        );
+    }
+    Ok(())
 }

@@ -767,21 +767,6 @@ impl Logbook {
         Ok((total - deleted).max(0) as u64)
     }
 
-    /// The calls that logged the contacts `q` selects, in order.
-    pub fn logging_calls(&self, q: &ContactQuery) -> Result<Vec<String>> {
-        let Ok(drill_id) = self.query_drill(q)? else {
-            return Ok(Vec::new());
-        };
-        let (filter, values) = filter_sql(q, drill_id);
-        let mut stmt = self.conn.prepare(&format!(
-            "SELECT DISTINCT c.own_call FROM contact c WHERE 1{filter} ORDER BY 1"
-        ))?;
-        let calls = stmt
-            .query_map(params_from_iter(values), |r| r.get(0))?
-            .collect::<rusqlite::Result<Vec<String>>>()?;
-        Ok(calls)
-    }
-
     fn require_reason(reason: &str) -> Result<&str> {
         let r = reason.trim();
         if r.is_empty() {
