@@ -112,3 +112,32 @@ fn sun_json_matches_ephem_and_handles_polar_night() {
     // above −6°: no sunrise, yet a civil dawn.
     assert!(v["sunrise"].is_null() && v["sunset"].is_null() && v["civil_dawn"].is_string());
 }
+
+#[test]
+fn path_and_sun_read_in_80_columns() {
+    for args in [
+        vec!["path", "JN17ga", "JN26le"],
+        vec!["path", "JN17ga", "JN26le", "--time", "2026-12-01T12:00Z"],
+        vec!["path", "JN17ga", "JN26le", "--time", "2026-12-01T23:00Z"],
+        vec!["path", "JN07", "JN19", "--height", "300"],
+        vec![
+            "sun",
+            "JN17ga",
+            "--date",
+            "2026-12-21",
+            "--time",
+            "2026-12-21T12:00Z",
+        ],
+    ] {
+        let (code, text, err) = nearsky(&args);
+        assert_eq!(code, 0, "{err}");
+        for l in text.lines() {
+            assert!(l.chars().count() <= 80, "{args:?}: `{l}`");
+        }
+    }
+    let (_, text, _) = nearsky(&["path", "JN17ga", "JN26le", "--time", "2026-12-01T12:00Z"]);
+    assert!(
+        text.contains("layer         250 km virtual height (default for the Sun at the midpoint)"),
+        "{text}"
+    );
+}

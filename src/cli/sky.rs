@@ -93,9 +93,13 @@ pub fn path(out: &mut impl Write, a: &PathArgs, now: DateTime<Utc>) -> Result<()
                 (Direction::Antipodal, _, _) => w("bearing       antipodal, any direction".into())?,
                 _ => w("bearing       same square: no bearing".into())?,
             }
+            // The layer on a line of its own: with its reason it would pass 80 columns.
             w(format!(
-                "take-off      {:.1} deg above the horizon (layer at {height:.0} km, {height_why})",
+                "take-off      {:.1} deg above the horizon",
                 hop.takeoff_deg
+            ))?;
+            w(format!(
+                "layer         {height:.0} km virtual height ({height_why})"
             ))?;
             w(format!("path class    {}", class.words()))?;
             if let (Some(t), Some(e)) = (at, mid_sun) {
