@@ -262,6 +262,16 @@ fn logging_on_60_m_above_15_w_or_off_the_segment_is_cautioned_not_refused() {
     let (code, out, err) = log("5.3625", "100");
     assert_eq!(code, 0, "{err}");
     assert!(out.contains("logged"), "{out}");
+    // What `log` says fits 80 columns, on stdout and stderr (a second contact a minute
+    // later also gets the possible-duplicate warning).
+    let (_, out2, err2) = log("5.3625", "100");
+    for l in [out.as_str(), err.as_str(), out2.as_str(), err2.as_str()]
+        .iter()
+        .flat_map(|t| t.lines())
+    {
+        assert!(l.chars().count() <= 80, "`{l}`");
+    }
+    assert!(out2.contains("possible duplicate"), "{out2}");
     assert!(
         err.contains("caution: 60 m: 100 W") && err.contains("licence"),
         "{err}"

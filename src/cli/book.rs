@@ -12,6 +12,7 @@ use super::args::{
     DeleteArgs, DrillCommand, EditArgs, ListArgs, ListFormat, LogArgs, NoteArgs, RosterCommand,
     StationCommand, TextOrJson, WriterArgs,
 };
+use super::review::wrap;
 use super::{CliError, band_flag, clip, count_of, io, usage};
 use crate::domain::caution::transmit_cautions;
 use crate::domain::geo;
@@ -133,6 +134,9 @@ pub fn describe(c: &Contact) -> String {
     }
     if let Some(r) = c.rcvd {
         s.push_str(&format!(" rcvd {r}"));
+    }
+    if let Some(v) = &c.via {
+        s.push_str(&format!(" via {v}"));
     }
     if let (Some(a), Some(b)) = (&c.own.locator, &c.locator) {
         let p = geo::centre_path(a, b);
@@ -265,7 +269,7 @@ pub fn log(
     let dups = book.add_contact(&contact, window).map_err(st)?;
     // On stderr, so that the JSON on stdout stays clean; the contact is logged either way.
     for c in transmit_cautions(contact.band, contact.frequency, contact.own.power) {
-        eprintln!("caution: {c}");
+        eprintln!("{}", wrap(&format!("caution: {c}"), "", "  "));
     }
     match a.format {
         TextOrJson::Json => {
@@ -275,17 +279,17 @@ pub fn log(
             writeln!(out, "{v}").map_err(io)?;
         }
         TextOrJson::Text => {
-            writeln!(out, "logged {}", describe(&contact)).map_err(io)?;
+            let said = format!("logged {}", describe(&contact));
+            writeln!(out, "{}", wrap(&said, "", "  ")).map_err(io)?;
             writeln!(out, "id {}", contact.id).map_err(io)?;
             for d in dups {
-                writeln!(
-                    out,
+                let said = format!(
                     "warning: possible duplicate of {} at {} ({}); kept both",
                     d.id,
                     d.start.format("%H:%M UTC"),
                     d.outcome.words()
-                )
-                .map_err(io)?;
+                );
+                writeln!(out, "{}", wrap(&said, "", "  ")).map_err(io)?;
             }
         }
     }
@@ -439,7 +443,8 @@ pub fn edit(out: &mut impl Write, db: Option<&Path>, a: &EditArgs) -> Result<(),
     };
     let updated = form.validate(&ctx).map_err(usage)?;
     book.edit_contact(&updated, &a.reason).map_err(st)?;
-    writeln!(out, "edited {}", describe(&updated)).map_err(io)?;
+    let said = format!("edited {}", describe(&updated));
+    writeln!(out, "{}", wrap(&said, "", "  ")).map_err(io)?;
     writeln!(out, "revision {} kept with the reason", stored.revision).map_err(io)?;
     Ok(())
 }
@@ -449,12 +454,11 @@ pub fn delete(out: &mut impl Write, db: Option<&Path>, a: &DeleteArgs) -> Result
     let stored = book.find_contact(&a.id).map_err(st)?;
     book.delete_contact(stored.contact.id, &a.reason)
         .map_err(st)?;
-    writeln!(
-        out,
+    let said = format!(
         "deleted {} (kept in the file, marked deleted)",
         describe(&stored.contact)
-    )
-    .map_err(io)?;
+    );
+    writeln!(out, "{}", wrap(&said, "", "  ")).map_err(io)?;
     Ok(())
 }
 
