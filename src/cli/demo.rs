@@ -53,14 +53,13 @@ pub fn prepare(out: &mut impl Write, db: Option<&Path>, force: bool) -> Result<P
     let mut book = Logbook::open(&path).map_err(|e| CliError::Failure(e.into()))?;
     let s = crate::demo::install(&mut book, crate::demo::SEED)
         .map_err(|e| CliError::Failure(e.into()))?;
-    writeln!(
-        out,
+    let said = format!(
         "created the demo logbook {} with {} records (seed {})",
         path.display(),
         s.contacts.len(),
         crate::demo::SEED
-    )
-    .map_err(io)?;
+    );
+    writeln!(out, "{}", review::wrap(&said, "", "  ")).map_err(io)?;
     Ok(path)
 }
 
