@@ -440,26 +440,7 @@ pub fn coverage(out: &mut impl Write, db: Option<&Path>, a: &CoverageArgs) -> Re
 
 /// Word-wraps `text` to 80 columns: the first line after `first`, the others after `rest`.
 pub(crate) fn wrap(text: &str, first: &str, rest: &str) -> String {
-    let mut out = String::from(first);
-    let mut col = first.chars().count();
-    let mut at_start = true;
-    for word in text.split(' ').filter(|w| !w.is_empty()) {
-        let len = word.chars().count();
-        if !at_start && col + 1 + len > 80 {
-            out.push('\n');
-            out.push_str(rest);
-            col = rest.chars().count();
-            at_start = true;
-        }
-        if !at_start {
-            out.push(' ');
-            col += 1;
-        }
-        out.push_str(word);
-        col += len;
-        at_start = false;
-    }
-    out
+    crate::domain::text::wrap_words(text, 80, first, rest, false).join("\n")
 }
 
 pub fn plan_of(

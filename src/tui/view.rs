@@ -570,15 +570,14 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                 let sun = e
                     .sun_elevation_deg
                     .map_or(String::new(), |x| format!(" [sun {x:.0} deg]"));
-                lines.extend(hanging(&format!("{}{sun}", e.note), text_width, 2));
+                lines.extend(wrapped(&format!("{}{sun}", e.note), text_width, "", 2));
                 for (t, b, st, text) in &e.operator_notes {
-                    let note = format!(
-                        "   note {} {st}{}: {}",
+                    let head = format!(
+                        "   note {} {st}{}: ",
                         t.format("%H:%M"),
-                        b.map_or(String::new(), |b| format!(" {b}")),
-                        visible(text)
+                        b.map_or(String::new(), |b| format!(" {b}"))
                     );
-                    lines.extend(hanging(&note, text_width, 8));
+                    lines.extend(wrapped(&visible(text), text_width, &head, 8));
                 }
             }
         }
@@ -591,15 +590,14 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                 let n =
                     |x: Option<crate::domain::Band>| x.map_or("-".to_string(), |b| b.to_string());
                 // The evidence wraps under its own column.
-                let row = format!(
-                    "{:<6}{:<8}{:<10}{:>4}  {}",
+                let head = format!(
+                    "{:<6}{:<8}{:<10}{:>4}  ",
                     b.hour_start,
                     n(b.primary),
                     n(b.alternate),
-                    b.attempts,
-                    b.note
+                    b.attempts
                 );
-                lines.extend(hanging(&row, text_width, 30));
+                lines.extend(wrapped(&b.note, text_width, &head, 30));
             }
             if !plan.relays.is_empty() {
                 lines.push(Line::from(""));
@@ -608,7 +606,7 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                     bold(),
                 )));
                 for r in &plan.relays {
-                    lines.extend(hanging(&r.line(3), text_width, 6));
+                    lines.extend(wrapped(&r.line(3), text_width, "", 6));
                 }
             }
         }
@@ -620,43 +618,13 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
     f.render_widget(p, body);
 }
 
-/// `text` broken at spaces into lines of at most `width` characters, every line after the
-/// first indented by `indent` spaces (a word longer than a line is cut).
-fn hanging(text: &str, width: usize, indent: usize) -> Vec<Line<'static>> {
-    let width = width.max(indent + 10);
-    let mut out = Vec::new();
-    let mut line = String::new();
-    // Characters in `line`, and whether no word has been put on it yet.
-    let (mut len, mut fresh) = (0, true);
-    for word in text.split(' ') {
-        if !fresh {
-            if len + 1 + word.chars().count() > width {
-                out.push(Line::from(std::mem::take(&mut line)));
-                line = " ".repeat(indent);
-                len = indent;
-            } else {
-                line.push(' ');
-                len += 1;
-            }
-        }
-        let mut rest = word;
-        while len + rest.chars().count() > width {
-            let cut = rest
-                .char_indices()
-                .nth(width - len)
-                .map_or(rest.len(), |(i, _)| i);
-            line.push_str(&rest[..cut]);
-            rest = &rest[cut..];
-            out.push(Line::from(std::mem::take(&mut line)));
-            line = " ".repeat(indent);
-            len = indent;
-        }
-        line.push_str(rest);
-        len += rest.chars().count();
-        fresh = false;
-    }
-    out.push(Line::from(line));
-    out
+/// `text` wrapped to `width` after `first`, the lines after the first indented by `indent`
+/// spaces; a word too long for a line is cut rather than hidden by the border.
+fn wrapped(text: &str, width: usize, first: &str, indent: usize) -> Vec<Line<'static>> {
+    crate::domain::text::wrap_words(text, width, first, &" ".repeat(indent), true)
+        .into_iter()
+        .map(Line::from)
+        .collect()
 }
 
 fn short_ruler(bins: usize) -> String {
@@ -987,27 +955,6 @@ mod tests {
 
     fn mark(col: u16, row: u16, len: u16) -> Mark {
         Mark { col, row, len }
-    }
-
-    fn texts(lines: Vec<Line<'static>>) -> Vec<String> {
-        lines.into_iter().map(|l| l.to_string()).collect()
-    }
-
-    #[test]
-    fn hanging_lines_break_at_spaces_and_indent_what_follows() {
-        assert_eq!(
-            texts(hanging("one two three four five six", 14, 2)),
-            ["one two three", "  four five", "  six"]
-        );
-        // Short text: one line, as it is (leading spaces kept).
-        assert_eq!(texts(hanging("   note 01:02", 40, 8)), ["   note 01:02"]);
-        // A word longer than a line is cut, and no line is longer than the width.
-        let long = format!("x {} y", "a".repeat(50));
-        let out = texts(hanging(&long, 20, 4));
-        assert!(out.iter().all(|l| l.chars().count() <= 20), "{out:?}");
-        assert_eq!(out.concat().replace(' ', ""), long.replace(' ', ""));
-        // A width too small for the indent still ends.
-        assert!(!hanging("a b c d e f g h", 3, 6).is_empty());
     }
 
     #[test]
