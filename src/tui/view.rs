@@ -58,10 +58,10 @@ pub fn outcome_glyph(o: Outcome) -> &'static str {
 pub fn draw(f: &mut Frame, s: &AppState, now: DateTime<Utc>, theme: Theme) {
     let area = f.area();
     // A message longer than the screen is wide takes up to three rows rather than being cut
-    // off (words are not split, hence the spare room).
-    let (text, _) = message_text(s, theme);
-    let width = usize::from(area.width.max(1));
-    let message_rows = (text.chars().count() * 11 / 10).div_ceil(width).clamp(1, 3) as u16;
+    // off.
+    let (text, style) = message_text(s, theme);
+    let said = wrapped(&text, usize::from(area.width), "", 0);
+    let message_rows = said.len().clamp(1, 3) as u16;
     let [status, banner, body, message, hints] = Layout::vertical([
         Constraint::Length(1),
         Constraint::Length(1),
@@ -78,7 +78,7 @@ pub fn draw(f: &mut Frame, s: &AppState, now: DateTime<Utc>, theme: Theme) {
         Screen::Review => draw_review(f, body, s, theme),
         Screen::Map => draw_map(f, body, s, theme),
     }
-    draw_message(f, message, s, theme);
+    f.render_widget(Paragraph::new(Text::from(said)).style(style), message);
     f.render_widget(
         Paragraph::new(Line::from(hints_for(s)).style(Style::new().add_modifier(Modifier::DIM))),
         hints,
@@ -181,14 +181,6 @@ fn message_text(s: &AppState, theme: Theme) -> (String, Style) {
         Some(Message::Error(t)) => (format!("error: {t}"), bold().patch(theme.fg(Color::Red))),
     };
     (visible(&text).into_owned(), style)
-}
-
-fn draw_message(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
-    let (text, style) = message_text(s, theme);
-    f.render_widget(
-        Paragraph::new(text).style(style).wrap(Wrap { trim: true }),
-        area,
-    );
 }
 
 fn hints_for(s: &AppState) -> String {
