@@ -1,6 +1,7 @@
 //! Profiling aid: coverage + plan of 1,000,000 in-memory contacts among 200 stations, with the
 //! time of each stage. Run: `cargo bench --bench covprof`; `NEARSKY_COVPROF=10000,200` sets
 //! the contacts and stations; `NEARSKY_COVPROF_DIGEST=1` also prints a digest of the result.
+//! It also prints what a mere copy of the result costs: a floor for making it at all.
 
 #[path = "common/mod.rs"]
 mod common;
@@ -38,6 +39,26 @@ fn main() {
         p.relays.len(),
         c.links.len()
     );
+    // What merely making the result costs: a copy of the coverage and the plan.
+    let t = Instant::now();
+    let copy = (c.clone(), p.clone());
+    let copied = t.elapsed();
+    let cells: usize = c
+        .links
+        .iter()
+        .map(|l| {
+            l.cells
+                .values()
+                .map(|row| row.iter().flatten().count())
+                .sum::<usize>()
+        })
+        .sum();
+    let candidates: usize = p.relays.iter().map(|r| r.candidates.len()).sum();
+    println!(
+        "copying the result alone {:.0} ms ({cells} link cells, {candidates} relay candidates)",
+        copied.as_secs_f64() * 1e3
+    );
+    drop(copy);
     // A digest of the whole result, so that a speed change can be shown to change nothing:
     // FNV-1a over the JSON of the coverage and the plan.
     if std::env::var_os("NEARSKY_COVPROF_DIGEST").is_some() {
