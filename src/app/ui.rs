@@ -313,6 +313,9 @@ pub struct Snapshot {
     pub recent: Vec<Contact>,
     pub count: u64,
     pub newest: Option<DateTime<Utc>>,
+    /// Band, frequency and mode of the newest contact in the whole logbook, whatever its
+    /// drill: a new drill starts with the radio as it was left.
+    pub last_radio: Option<(Band, Option<Frequency>, Mode)>,
 }
 
 #[derive(Debug, Clone, PartialEq)]
@@ -492,16 +495,20 @@ impl AppState {
             let ch = self.data.channels.iter().find(|c| c.band == band);
             let mode = ch
                 .map(|c| c.mode.clone())
-                .or_else(|| self.recent.first().map(|r| r.contact.mode.clone()));
+                .or_else(|| self.last_radio().map(|r| r.2));
             return (Some(band), ch.map(|c| c.frequency), mode);
         }
-        match self.recent.first() {
-            Some(r) => (
-                Some(r.contact.band),
-                r.contact.frequency,
-                Some(r.contact.mode.clone()),
-            ),
+        match self.last_radio() {
+            Some((band, freq, mode)) => (Some(band), freq, Some(mode)),
             None => (None, None, None),
+        }
+    }
+
+    /// Band, frequency and mode last used: in this drill, else anywhere in the logbook.
+    fn last_radio(&self) -> Option<(Band, Option<Frequency>, Mode)> {
+        match self.recent.first() {
+            Some(r) => Some((r.contact.band, r.contact.frequency, r.contact.mode.clone())),
+            None => self.data.last_radio.clone(),
         }
     }
 
@@ -815,7 +822,7 @@ impl AppState {
             Prompt::Note(t) => {
                 let band = Band::parse(self.entry.get(Field::Band))
                     .ok()
-                    .or_else(|| self.recent.first().map(|r| r.contact.band));
+                    .or_else(|| self.last_radio().map(|r| r.0));
                 Update::with(Effect::Note {
                     text: t,
                     band,
@@ -1057,7 +1064,7 @@ impl AppState {
         let ch = self.data.channels.iter().find(|c| c.band == self.roll_band);
         let mode = ch
             .map(|c| c.mode.clone())
-            .or_else(|| self.recent.first().map(|r| r.contact.mode.clone()))
+            .or_else(|| self.last_radio().map(|r| r.2))
             .or_else(|| Mode::parse("SSB").ok());
         let Some(mode) = mode else {
             return Update::default();
@@ -1270,6 +1277,7 @@ mod tests {
             recent: vec![],
             count: 0,
             newest: None,
+            last_radio: None,
         }
     }
 
@@ -1357,6 +1365,27 @@ mod tests {
             "{:?}",
             s.message
         );
+    }
+
+    #[test]
+    fn a_new_drill_starts_with_the_radio_as_the_last_contact_left_it() {
+        let last = (
+            Band::B60m,
+            Frequency::from_hz(5_363_000).ok(),
+            Mode::parse("USB").unwrap(),
+        );
+        let mut s = AppState::new(Snapshot {
+            last_radio: Some(last),
+            ..snapshot()
+        });
+        typed(&mut s, "Q4SHL");
+        assert_eq!(s.entry.get(Field::Band), "60m");
+        assert_eq!(s.entry.get(Field::Frequency), "5.363");
+        assert_eq!(s.entry.get(Field::Mode), "USB");
+        // Without any contact anywhere, nothing is guessed.
+        let mut s = AppState::new(snapshot());
+        typed(&mut s, "Q4SHL");
+        assert_eq!(s.entry.get(Field::Mode), "");
     }
 
     #[test]

@@ -91,7 +91,7 @@ pub const STATIONS: [DemoStation; 12] = [
     },
     DemoStation {
         call: "Q3RED",
-        tactical: "Red Cross",
+        tactical: "Aid Post",
         locator: "IN97oi",
         role: "aid",
         power_w: 30.0,

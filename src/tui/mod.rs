@@ -62,6 +62,9 @@ pub fn snapshot(book: &Logbook, now: DateTime<Utc>) -> Result<Snapshot, StoreErr
         roster: book.roster()?,
         recent: recent.into_iter().map(|s| s.contact).collect(),
         newest: newest.first().map(|s| s.contact.start),
+        last_radio: newest
+            .first()
+            .map(|s| (s.contact.band, s.contact.frequency, s.contact.mode.clone())),
     })
 }
 
