@@ -179,6 +179,15 @@ fn edits_and_deletes_keep_the_trail_and_need_a_reason() {
         serde_json::from_str(&ok(&db, &["list", "--format", "json"])).unwrap();
     assert_eq!(list[0]["rst_rcvd"], "55");
     assert_eq!(list[0]["revision"], 2);
+    // The same value again changes nothing, so no revision is added.
+    let out = ok(
+        &db,
+        &["edit", short, "--rcvd", "55", "--reason", "checked again"],
+    );
+    assert!(out.starts_with("nothing changed"), "{out}");
+    let list: serde_json::Value =
+        serde_json::from_str(&ok(&db, &["list", "--format", "json"])).unwrap();
+    assert_eq!(list[0]["revision"], 2);
     ok(&db, &["delete", short, "--reason", "wrong station"]);
     let list: serde_json::Value =
         serde_json::from_str(&ok(&db, &["list", "--format", "json"])).unwrap();

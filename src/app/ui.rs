@@ -100,8 +100,8 @@ pub struct Entry {
     pub outcome: Outcome,
     /// Fields filled in by nearsky rather than typed (they follow the call as it changes).
     pub auto: [bool; FIELDS.len()],
-    /// The contact being corrected, when editing.
-    pub editing: Option<ContactId>,
+    /// The contact being corrected (as stored), when editing.
+    pub editing: Option<Box<Contact>>,
     /// Per-field problems found while typing.
     pub problems: [Option<String>; FIELDS.len()],
 }
@@ -593,27 +593,46 @@ impl AppState {
     }
 
     fn build_contact(&mut self, now: DateTime<Utc>, id: ContactId) -> Result<Contact, String> {
-        let Some(own) = self.own_snapshot() else {
-            return Err("no own station yet: set it with `nearsky station set` first".into());
+        let original = self.entry.editing.clone();
+        let (own, drill, origin) = match &original {
+            // A correction keeps the station as it was then (its locator before a move, its
+            // power and antenna), the drill and where the record came from.
+            Some(o) => (o.own.clone(), o.drill.clone(), o.origin.clone()),
+            None => match self.own_snapshot() {
+                Some(own) => (own, self.data.drill.clone(), Origin::LoggedHere),
+                None => {
+                    return Err(
+                        "no own station yet: set it with `nearsky station set` first".into(),
+                    );
+                }
+            },
         };
         let ctx = FormContext {
             id,
             own,
-            drill: self.data.drill.clone(),
+            drill,
             today: self.entry_time(now).date_naive(),
-            origin: Origin::LoggedHere,
+            origin,
         };
         let mut form = self.entry.form();
         if form.time.trim().is_empty() {
             form.time = self.entry_time(now).format("%Y-%m-%d %H:%M:%S").to_string();
         }
-        form.validate(&ctx).map_err(|e| {
+        let c = form.validate(&ctx).map_err(|e| {
             // Focus the first bad field in screen order.
             if let Some(i) = e.0.iter().map(|f| Entry::idx(f.field)).min() {
                 self.entry.focus = i;
             }
             e.to_string()
-        })
+        })?;
+        let Some(o) = original else {
+            return Ok(c);
+        };
+        // What the form does not show stays as it was; the end moves with the start.
+        let mut parts = c.into_parts();
+        parts.end = o.end.map(|end| end + (parts.start - o.start));
+        parts.other_power = o.other_power;
+        Contact::new(parts).map_err(|e| e.to_string())
     }
 
     /// Applies the result of an effect.
@@ -939,10 +958,20 @@ impl AppState {
                 if self.data.station.is_none() {
                     return self.ask_station();
                 }
-                let id = self.entry.editing.unwrap_or_else(&mut *new_id);
+                let id = match &self.entry.editing {
+                    Some(o) => o.id,
+                    None => new_id(),
+                };
                 return match self.build_contact(now, id) {
                     Err(e) => {
                         self.message = Some(Message::Error(e));
+                        Update::redraw()
+                    }
+                    Ok(c) if self.entry.editing.as_deref() == Some(&c) => {
+                        self.entry = Entry::default();
+                        self.message = Some(Message::Info(
+                            "nothing changed: the contact stays as it was".into(),
+                        ));
                         Update::redraw()
                     }
                     Ok(c) if self.entry.editing.is_some() => {
@@ -972,7 +1001,7 @@ impl AppState {
                 if let Some(r) = self.recent.get(sel) {
                     let c = &r.contact;
                     let mut e = Entry {
-                        editing: Some(c.id),
+                        editing: Some(Box::new(c.clone())),
                         outcome: c.outcome,
                         ..Entry::default()
                     };
@@ -1002,7 +1031,15 @@ impl AppState {
                             c.band.to_string()
                         },
                     );
-                    set(&mut e, Field::Mode, c.mode.to_string());
+                    // As typed in a new entry (`LSB`), unless the short name would read back
+                    // as another mode.
+                    let short = c.mode.short();
+                    let mode = if Mode::parse(short).as_ref() == Ok(&c.mode) {
+                        short.to_string()
+                    } else {
+                        c.mode.to_string()
+                    };
+                    set(&mut e, Field::Mode, mode);
                     set(
                         &mut e,
                         Field::Sent,
@@ -1540,6 +1577,79 @@ mod tests {
     }
 
     #[test]
+    fn a_correction_changes_only_what_was_corrected() {
+        // A record logged from where the station was before it moved, with the power and
+        // antenna of then, an end time and the other side's power: none of which the form
+        // shows.
+        let start = Utc.with_ymd_and_hms(2026, 12, 1, 9, 0, 0).unwrap();
+        let original = Contact::new(crate::domain::ContactParts {
+            id: ContactId(uuid::Uuid::from_u128(7)),
+            drill: Some("Spring net".into()),
+            own: crate::domain::StationSnapshot {
+                call: Callsign::parse("Q3NET").unwrap(),
+                operator: Callsign::parse("Q4OPR").ok(),
+                locator: Locator::parse("JN27ab").ok(),
+                power: Power::from_watts(10.0).ok(),
+                antenna: Some("inverted V".into()),
+            },
+            call: Callsign::parse("Q7HSP").unwrap(),
+            locator: Locator::parse("JN17ig").ok(),
+            start,
+            end: Some(start + Duration::minutes(4)),
+            band: Band::B80m,
+            frequency: Frequency::from_hz(3_598_000).ok(),
+            mode: Mode::parse("LSB").unwrap(),
+            sent: Report::parse("57").ok(),
+            rcvd: Report::parse("55").ok(),
+            other_power: Power::from_watts(40.0).ok(),
+            outcome: Outcome::Worked,
+            via: None,
+            note: "weak".into(),
+            origin: Origin::LoggedHere,
+        })
+        .unwrap();
+        let open = || {
+            let mut s = AppState::new(Snapshot {
+                recent: vec![original.clone()],
+                ..snapshot()
+            });
+            let mut id = || ContactId(uuid::Uuid::nil());
+            s.key(Key::PageUp, now(), &mut id);
+            s.key(Key::Char('e'), now(), &mut id);
+            s
+        };
+        let mut id = || ContactId(uuid::Uuid::nil());
+        // Enter with nothing changed: no revision, no reason asked.
+        let mut s = open();
+        let u = s.key(Key::Enter, now(), &mut id);
+        assert!(u.effects.is_empty());
+        assert_eq!(s.prompt, None);
+        assert!(s.entry.editing.is_none());
+        assert!(
+            matches!(&s.message, Some(Message::Info(m)) if m.contains("nothing changed")),
+            "{:?}",
+            s.message
+        );
+        // A later start and another report: the rest stays, the end keeps its 4 minutes.
+        let mut s = open();
+        s.entry.values[Entry::idx(Field::Time)] = "2026-12-01 09:10:00".into();
+        s.entry.values[Entry::idx(Field::Rcvd)] = "59".into();
+        s.key(Key::Enter, now(), &mut id);
+        let Some(Prompt::Reason {
+            action: ReasonFor::Edit(c),
+            ..
+        }) = &s.prompt
+        else {
+            panic!("a reason is asked: {:?}", s.prompt);
+        };
+        let mut want = original.clone().into_parts();
+        want.start = start + Duration::minutes(10);
+        want.end = Some(start + Duration::minutes(14));
+        want.rcvd = Report::parse("59").ok();
+        assert_eq!(c.as_ref().clone().into_parts(), want);
+    }
+
+    #[test]
     fn edits_and_deletes_ask_for_a_reason() {
         let mut data = snapshot();
         let mut s0 = AppState::new(snapshot());
@@ -1574,5 +1684,14 @@ mod tests {
                 reason: "dup".into()
             }]
         );
+        // `e` opens the contact with its mode written as a new entry takes it.
+        let mut s = AppState::new(Snapshot {
+            recent: vec![c.clone()],
+            ..snapshot()
+        });
+        s.key(Key::PageUp, now(), &mut id);
+        s.key(Key::Char('e'), now(), &mut id);
+        assert_eq!(s.entry.get(Field::Mode), "LSB");
+        assert_eq!(s.entry.get(Field::Call), "Q4SHL");
     }
 }

@@ -442,6 +442,16 @@ pub fn edit(out: &mut impl Write, db: Option<&Path>, a: &EditArgs) -> Result<(),
         origin: c.origin.clone(),
     };
     let updated = form.validate(&ctx).map_err(usage)?;
+    if updated == *c {
+        writeln!(
+            out,
+            "nothing changed: contact {} stays as it was (revision {})",
+            &c.id.to_string()[..8],
+            stored.revision
+        )
+        .map_err(io)?;
+        return Ok(());
+    }
     book.edit_contact(&updated, &a.reason).map_err(st)?;
     let said = format!("edited {}", describe(&updated));
     writeln!(out, "{}", wrap(&said, "", "  ")).map_err(io)?;
