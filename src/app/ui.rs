@@ -839,9 +839,13 @@ impl AppState {
         match p {
             Prompt::Note(t) if t.trim().is_empty() => Update::redraw(),
             Prompt::Note(t) => {
-                let band = Band::parse(self.entry.get(Field::Band))
-                    .ok()
-                    .or_else(|| self.last_radio().map(|r| r.0));
+                // The band in front of the operator: the roll call's, else the entry's.
+                let band = if self.screen == Screen::RollCall {
+                    Some(self.roll_band)
+                } else {
+                    Band::parse(self.entry.get(Field::Band)).ok()
+                }
+                .or_else(|| self.last_radio().map(|r| r.0));
                 Update::with(Effect::Note {
                     text: t,
                     band,
@@ -1551,6 +1555,21 @@ mod tests {
             panic!("{:?}", s.message)
         };
         assert_eq!(contact.rcvd.map(|r| r.to_string()), Some("55".into()));
+        // A propagation note taken during the roll call is on the roll call's band.
+        s.key(Key::Ctrl('t'), now(), &mut id);
+        typed(&mut s, "fading");
+        let u = s.key(Key::Enter, now(), &mut id);
+        assert!(
+            matches!(
+                u.effects.first(),
+                Some(Effect::Note {
+                    band: Some(Band::B60m),
+                    ..
+                })
+            ),
+            "{:?}",
+            u.effects
+        );
     }
 
     #[test]
