@@ -323,7 +323,7 @@ fn export_for_one_main_log_takes_one_stations_contacts() {
     );
     let (code, one, err) = run(&["--db", d, "export", "--station", "Q4SHL"], &[]);
     assert_eq!(code, 0, "{err}");
-    assert!(!err.contains("note:"), "{err}");
+    assert!(!err.contains("stations ("), "{err}");
     let records = one.matches("<EOR>").count();
     assert!(
         records > 10 && records < all.matches("<EOR>").count(),
@@ -538,4 +538,41 @@ fn a_refused_file_says_nothing_was_stored() {
     // Nothing landed, so no word about where it would have gone.
     assert!(!out.contains("drill: records"), "{out}");
     assert!(err.contains("--skip-bad"), "{err}");
+}
+
+#[test]
+fn an_export_says_how_many_failed_attempts_it_left_out() {
+    let b = Book::with_station();
+    b.ok(&["log", "Q4SHL", "--freq", "3.6", "--mode", "LSB"]);
+    b.ok(&[
+        "log",
+        "Q7HSP",
+        "--band",
+        "80m",
+        "--mode",
+        "LSB",
+        "--outcome",
+        "none",
+    ]);
+    b.ok(&[
+        "log",
+        "Q2FIR",
+        "--band",
+        "80m",
+        "--mode",
+        "LSB",
+        "--outcome",
+        "none",
+    ]);
+    let (code, out, err) = b.run(&["export", "--format", "adi"]);
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(out.matches("<EOR>").count(), 1, "{out}");
+    assert!(
+        err.contains("2 failed attempts not written") && err.contains("--include-attempts"),
+        "{err}"
+    );
+    let (code, out, err) = b.run(&["export", "--format", "adi", "--include-attempts"]);
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(out.matches("<EOR>").count(), 3, "{out}");
+    assert!(!err.contains("not written"), "{err}");
 }

@@ -273,6 +273,8 @@ pub fn export(
 #[derive(Debug, Default)]
 pub struct Exported {
     pub written: usize,
+    /// Failed attempts that matched but were left out (without `include_attempts`).
+    pub attempts_left_out: usize,
     /// The base calls of the stations that logged what was written, sorted.
     pub stations: Vec<String>,
 }
@@ -308,6 +310,7 @@ pub fn export_report(
             Ok(())
         });
         let mut n = 0;
+        let mut left_out = 0;
         let mut stations = std::collections::HashSet::new();
         let mut batch = Vec::with_capacity(EXPORT_BATCH);
         // A failed write to the output, kept as it is (a closed pipe is told apart from
@@ -321,6 +324,8 @@ pub fn export_report(
                     stations.insert(base.to_string());
                 }
                 batch.push(s);
+            } else {
+                left_out += 1;
             }
             if batch.len() == EXPORT_BATCH {
                 // A closed channel means the formatter failed: stop reading; join() below
@@ -364,6 +369,7 @@ pub fn export_report(
         stations.sort();
         Ok(Exported {
             written: n,
+            attempts_left_out: left_out,
             stations,
         })
     })

@@ -184,6 +184,12 @@ pub fn export(
         }
     };
     let done = done.map_err(|e| CliError::Failure(e.into()))?;
+    if done.attempts_left_out > 0 {
+        eprintln!(
+            "note: {} not written (contacts only; --include-attempts writes them too)",
+            count_of(done.attempts_left_out as u64, "failed attempt")
+        );
+    }
     // A main station log should get one station's contacts: say so when there are several.
     let calls = &done.stations;
     if calls.len() > 1 {
