@@ -576,3 +576,37 @@ fn an_export_says_how_many_failed_attempts_it_left_out() {
     assert_eq!(out.matches("<EOR>").count(), 3, "{out}");
     assert!(!err.contains("not written"), "{err}");
 }
+
+#[test]
+fn a_plan_table_puts_hours_without_attempts_in_a_row_on_one_line() {
+    let b = Book::with_station();
+    b.ok(&[
+        "log", "Q4SHL", "--time", "08:05", "--freq", "3.6", "--mode", "LSB",
+    ]);
+    b.ok(&[
+        "log", "Q7HSP", "--time", "10:20", "--band", "80m", "--mode", "LSB",
+    ]);
+    let out = b.ok(&["plan"]);
+    let rows: Vec<&str> = out
+        .lines()
+        .skip_while(|l| !l.starts_with("UTC"))
+        .skip(1)
+        .filter(|l| !l.starts_with(' '))
+        .collect();
+    let starts: Vec<&str> = rows.iter().map(|r| &r[..5]).collect();
+    // 00–08 empty, 08 tried, 09 alone (one empty hour keeps its own wording), 10 tried,
+    // 11–24 empty.
+    assert_eq!(
+        starts,
+        ["00:00", "08:00", "09:00", "10:00", "11:00"],
+        "{out}"
+    );
+    assert!(rows[0].ends_with("nothing was tried 00:00–08:00"), "{out}");
+    assert!(rows[2].ends_with("nothing was tried in this hour"), "{out}");
+    assert!(rows[4].ends_with("nothing was tried 11:00–24:00"), "{out}");
+    assert!(out.lines().all(|l| l.chars().count() <= 80), "{out}");
+    // JSON keeps every bin.
+    let json: serde_json::Value =
+        serde_json::from_str(&b.ok(&["plan", "--format", "json"])).unwrap();
+    assert_eq!(json["bins"].as_array().map(Vec::len), Some(24));
+}
