@@ -14,7 +14,7 @@ use super::args::{CoverageArgs, CoverageView, CrosscheckArgs, PlanArgs, ReviewFo
 use super::book::open;
 use super::{CliError, band_flag, clip, io, usage};
 use crate::domain::coverage::{Coverage, CoverageConfig};
-use crate::domain::plan::{Plan, PlanBin, PlanConfig, make_plan};
+use crate::domain::plan::{Plan, PlanConfig, make_plan};
 use crate::domain::{Band, Outcome};
 use crate::store::Logbook;
 
@@ -557,22 +557,8 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
                 "UTC", "primary", "alternate", "n"
             )
             .map_err(io)?;
-            let mut i = 0;
-            while i < p.bins.len() {
-                let b = &p.bins[i];
-                // Hours in a row where nothing was tried take one line.
-                let empty = |b: &PlanBin| b.attempts == 0 && b.primary.is_none();
-                let run = p.bins[i..].iter().take_while(|b| empty(b)).count();
-                let note = if run > 1 {
-                    let last = &p.bins[i + run - 1];
-                    format!(
-                        "no evidence: nothing was tried {}–{}",
-                        b.hour_start,
-                        minutes_after(&last.hour_start, last.minutes)
-                    )
-                } else {
-                    b.note.clone()
-                };
+            for row in p.rows() {
+                let b = row.bin;
                 // The evidence wraps under its own column rather than being cut.
                 let first = format!(
                     "{:<5} {:<7} {:<9} {:>4}  ",
@@ -582,8 +568,7 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
                     b.attempts,
                 );
                 let rest = " ".repeat(first.chars().count());
-                writeln!(out, "{}", wrap(&note, &first, &rest)).map_err(io)?;
-                i += run.max(1);
+                writeln!(out, "{}", wrap(&row.note, &first, &rest)).map_err(io)?;
             }
             if !p.relays.is_empty() {
                 writeln!(
@@ -598,20 +583,6 @@ pub fn plan(out: &mut impl Write, db: Option<&Path>, a: &PlanArgs) -> Result<(),
         }
     }
     Ok(())
-}
-
-/// `HH:MM` plus some minutes, as `HH:MM` (`24:00` at the end of the day).
-fn minutes_after(hhmm: &str, minutes: u16) -> String {
-    let parsed = hhmm
-        .split_once(':')
-        .and_then(|(h, m)| Some(h.parse::<u32>().ok()? * 60 + m.parse::<u32>().ok()?));
-    match parsed {
-        Some(start) => {
-            let end = (start + u32::from(minutes)).min(1440);
-            format!("{:02}:{:02}", end / 60, end % 60)
-        }
-        None => hhmm.to_string(),
-    }
 }
 
 pub fn crosscheck(

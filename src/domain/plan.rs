@@ -114,6 +114,60 @@ pub struct Plan {
     pub ranking: String,
 }
 
+/// A row of the plan as a table shows it: one bin, or a run of bins where nothing was tried.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PlanRow<'a> {
+    /// The (first) bin.
+    pub bin: &'a PlanBin,
+    /// Bins the row stands for.
+    pub bins: usize,
+    pub note: String,
+}
+
+impl Plan {
+    /// The bins as rows of a table: hours in a row where nothing was tried take one row
+    /// ("nothing was tried 09:00–24:00"), so a short drill's plan is not a page of the same
+    /// words.
+    pub fn rows(&self) -> Vec<PlanRow<'_>> {
+        let empty = |b: &PlanBin| b.attempts == 0 && b.primary.is_none();
+        let mut rows = Vec::new();
+        let mut i = 0;
+        while i < self.bins.len() {
+            let bin = &self.bins[i];
+            let run = self.bins[i..].iter().take_while(|b| empty(b)).count();
+            let note = match self.bins.get(i + run.max(1) - 1) {
+                Some(last) if run > 1 => format!(
+                    "no evidence: nothing was tried {}–{}",
+                    bin.hour_start,
+                    minutes_after(&last.hour_start, last.minutes)
+                ),
+                _ => bin.note.clone(),
+            };
+            rows.push(PlanRow {
+                bin,
+                bins: run.max(1),
+                note,
+            });
+            i += run.max(1);
+        }
+        rows
+    }
+}
+
+/// `HH:MM` plus some minutes, as `HH:MM` (`24:00` at the end of the day).
+fn minutes_after(hhmm: &str, minutes: u16) -> String {
+    let parsed = hhmm
+        .split_once(':')
+        .and_then(|(h, m)| Some(h.parse::<u32>().ok()? * 60 + m.parse::<u32>().ok()?));
+    match parsed {
+        Some(start) => {
+            let end = (start + u32::from(minutes)).min(1440);
+            format!("{:02}:{:02}", end / 60, end % 60)
+        }
+        None => hhmm.to_string(),
+    }
+}
+
 /// Relay candidates kept per failing link (the strongest).
 pub const MAX_RELAY_CANDIDATES: usize = 5;
 
@@ -579,6 +633,63 @@ mod tests {
         StationSnapshot,
     };
     use chrono::{TimeZone, Utc};
+
+    #[test]
+    fn table_rows_join_hours_where_nothing_was_tried() {
+        // Half-hour bins: 00:00 and 00:30 empty, 01:00 tried, 01:30 empty, 02:00 and 02:30
+        // empty (the end of the day in this small plan).
+        let bin = |start: &str, attempts: u32| PlanBin {
+            hour_start: start.into(),
+            minutes: 30,
+            primary: (attempts > 0).then_some(Band::B80m),
+            alternate: None,
+            attempts,
+            note: if attempts > 0 {
+                "tried".into()
+            } else {
+                "empty".into()
+            },
+        };
+        let plan = Plan {
+            for_date: None,
+            evidence_date: None,
+            min_attempts: 1,
+            bins: vec![
+                bin("00:00", 0),
+                bin("00:30", 0),
+                bin("01:00", 5),
+                bin("01:30", 0),
+                bin("02:00", 3),
+                bin("23:00", 0),
+                bin("23:30", 0),
+            ],
+            relays: vec![],
+            ranking: String::new(),
+        };
+        let rows: Vec<(String, usize, String)> = plan
+            .rows()
+            .into_iter()
+            .map(|r| (r.bin.hour_start.clone(), r.bins, r.note))
+            .collect();
+        assert_eq!(
+            rows,
+            vec![
+                (
+                    "00:00".into(),
+                    2,
+                    "no evidence: nothing was tried 00:00–01:00".into()
+                ),
+                ("01:00".into(), 1, "tried".into()),
+                ("01:30".into(), 1, "empty".into()),
+                ("02:00".into(), 1, "tried".into()),
+                (
+                    "23:00".into(),
+                    2,
+                    "no evidence: nothing was tried 23:00–24:00".into()
+                ),
+            ]
+        );
+    }
 
     /// A pseudo-random drill among 40 stations (a fixed linear congruential sequence).
     fn drill() -> Coverage {

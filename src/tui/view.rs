@@ -578,7 +578,8 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                 "{:<6}{:<8}{:<10}{:>4}  evidence",
                 "UTC", "primary", "alternate", "n"
             )));
-            for b in &plan.bins {
+            for row in plan.rows() {
+                let b = row.bin;
                 let n =
                     |x: Option<crate::domain::Band>| x.map_or("-".to_string(), |b| b.to_string());
                 // The evidence wraps under its own column.
@@ -589,7 +590,7 @@ fn draw_review(f: &mut Frame, area: Rect, s: &AppState, theme: Theme) {
                     n(b.alternate),
                     b.attempts
                 );
-                lines.extend(wrapped(&b.note, text_width, &head, 30));
+                lines.extend(wrapped(&row.note, text_width, &head, 30));
             }
             if !plan.relays.is_empty() {
                 lines.push(Line::from(""));
