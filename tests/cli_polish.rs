@@ -544,26 +544,18 @@ fn a_refused_file_says_nothing_was_stored() {
 fn an_export_says_how_many_failed_attempts_it_left_out() {
     let b = Book::with_station();
     b.ok(&["log", "Q4SHL", "--freq", "3.6", "--mode", "LSB"]);
-    b.ok(&[
-        "log",
-        "Q7HSP",
-        "--band",
-        "80m",
-        "--mode",
-        "LSB",
-        "--outcome",
-        "none",
-    ]);
-    b.ok(&[
-        "log",
-        "Q2FIR",
-        "--band",
-        "80m",
-        "--mode",
-        "LSB",
-        "--outcome",
-        "none",
-    ]);
+    for call in ["Q7HSP", "Q2FIR"] {
+        b.ok(&[
+            "log",
+            call,
+            "--band",
+            "80m",
+            "--mode",
+            "LSB",
+            "--outcome",
+            "none",
+        ]);
+    }
     let (code, out, err) = b.run(&["export", "--format", "adi"]);
     assert_eq!(code, 0, "{err}");
     assert_eq!(out.matches("<EOR>").count(), 1, "{out}");
