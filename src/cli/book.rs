@@ -381,7 +381,7 @@ pub fn list(out: &mut impl Write, db: Option<&Path>, a: &ListArgs) -> Result<(),
                     c.rcvd.map(|x| x.to_string()).unwrap_or_default(),
                     km.map(|d| format!("{d:.0}")).unwrap_or_default(),
                     brg.map(|b| format!("{b:.0}")).unwrap_or_default(),
-                    &c.id.to_string()[..8],
+                    c.id.short(),
                 )
                 .map_err(io)?;
             }
@@ -446,7 +446,7 @@ pub fn edit(out: &mut impl Write, db: Option<&Path>, a: &EditArgs) -> Result<(),
         writeln!(
             out,
             "nothing changed: contact {} stays as it was (revision {})",
-            &c.id.to_string()[..8],
+            c.id.short(),
             stored.revision
         )
         .map_err(io)?;

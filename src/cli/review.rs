@@ -641,8 +641,8 @@ pub fn crosscheck(
                 writeln!(
                     out,
                     "         contacts {} and {}",
-                    &x.ids[0].to_string()[..8],
-                    &x.ids[1].to_string()[..8]
+                    x.ids[0].short(),
+                    x.ids[1].short()
                 )
                 .map_err(io)?;
             }

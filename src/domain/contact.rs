@@ -24,6 +24,16 @@ pub const MAX_TEXT: usize = 2000;
 #[serde(transparent)]
 pub struct ContactId(pub Uuid);
 
+impl ContactId {
+    /// The first 8 characters of the UUID: how lists show a contact, and enough to find it
+    /// again (`nearsky edit 3f2a91c0`).
+    pub fn short(&self) -> String {
+        let mut s = self.0.to_string();
+        s.truncate(8);
+        s
+    }
+}
+
 impl fmt::Display for ContactId {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         self.0.fmt(f)

@@ -272,8 +272,8 @@ pub fn html(c: &Coverage, plan: &Plan, info: &ReportInfo<'_>) -> String {
                 h,
                 "<tr><td>{kind}</td><td class=\"l\">{}</td><td>{} {}</td></tr>",
                 esc(&x.message),
-                &x.ids[0].to_string()[..8],
-                &x.ids[1].to_string()[..8]
+                x.ids[0].short(),
+                x.ids[1].short()
             );
         }
         h.push_str("</table>");
