@@ -553,7 +553,7 @@ impl AppState {
             self.entry.set_auto(Field::Band, b.to_string());
         }
         if let Some(m) = mode {
-            self.entry.set_auto(Field::Mode, m.short().to_string());
+            self.entry.set_auto(Field::Mode, m.as_typed());
         }
         if let Some(w) = self.data.station.as_ref().and_then(|p| p.usual_power) {
             self.entry.set_auto(Field::Power, w.watts().to_string());
@@ -1035,15 +1035,7 @@ impl AppState {
                             c.band.to_string()
                         },
                     );
-                    // As typed in a new entry (`LSB`), unless the short name would read back
-                    // as another mode.
-                    let short = c.mode.short();
-                    let mode = if Mode::parse(short).as_ref() == Ok(&c.mode) {
-                        short.to_string()
-                    } else {
-                        c.mode.to_string()
-                    };
-                    set(&mut e, Field::Mode, mode);
+                    set(&mut e, Field::Mode, c.mode.as_typed());
                     set(
                         &mut e,
                         Field::Sent,

@@ -197,6 +197,17 @@ impl Mode {
     pub fn short(&self) -> &str {
         self.submode.as_deref().unwrap_or(&self.mode)
     }
+
+    /// The mode as an operator types it into a form: the short name, unless that would read
+    /// back as another mode; then `MODE/SUBMODE`.
+    pub fn as_typed(&self) -> String {
+        let short = self.short();
+        if Mode::parse(short).as_ref() == Ok(self) {
+            short.to_string()
+        } else {
+            self.to_string()
+        }
+    }
 }
 
 fn find_submode_anywhere(upper: &str) -> Option<(&'static str, &'static str)> {
@@ -254,6 +265,11 @@ mod tests {
             ("SSB", Some("USB"), "USB")
         );
         assert_eq!(usb.to_string(), "SSB/USB");
+        // In a form: the short name, which reads back as the same mode (ADIF 3.1.7 lists
+        // USB under SSB only).
+        assert_eq!(usb.as_typed(), "USB");
+        assert_eq!(Mode::parse(&usb.as_typed()).unwrap(), usb);
+        assert_eq!(Mode::parse("CW").unwrap().as_typed(), "CW");
     }
 
     #[test]
