@@ -301,6 +301,11 @@ pub enum Done {
     Review(Box<(Coverage, Plan)>),
 }
 
+/// The band, frequency and mode a contact was made with.
+pub fn radio_of(c: &Contact) -> (Band, Option<Frequency>, Mode) {
+    (c.band, c.frequency, c.mode.clone())
+}
+
 /// What the logbook holds that the UI shows; loaded by the loop.
 #[derive(Debug, Clone, Default, PartialEq)]
 pub struct Snapshot {
@@ -507,7 +512,7 @@ impl AppState {
     /// Band, frequency and mode last used: in this drill, else anywhere in the logbook.
     fn last_radio(&self) -> Option<(Band, Option<Frequency>, Mode)> {
         match self.recent.first() {
-            Some(r) => Some((r.contact.band, r.contact.frequency, r.contact.mode.clone())),
+            Some(r) => Some(radio_of(&r.contact)),
             None => self.data.last_radio.clone(),
         }
     }

@@ -134,21 +134,24 @@ impl Plan {
         let mut i = 0;
         while i < self.bins.len() {
             let bin = &self.bins[i];
-            let run = self.bins[i..].iter().take_while(|b| empty(b)).count();
-            let note = match self.bins.get(i + run.max(1) - 1) {
-                Some(last) if run > 1 => format!(
+            // Bins this row stands for: the empty ones in a row, else this one.
+            let n = self.bins[i..]
+                .iter()
+                .take_while(|b| empty(b))
+                .count()
+                .max(1);
+            let last = &self.bins[i + n - 1];
+            let note = if n > 1 {
+                format!(
                     "no evidence: nothing was tried {}–{}",
                     bin.hour_start,
                     minutes_after(&last.hour_start, last.minutes)
-                ),
-                _ => bin.note.clone(),
+                )
+            } else {
+                bin.note.clone()
             };
-            rows.push(PlanRow {
-                bin,
-                bins: run.max(1),
-                note,
-            });
-            i += run.max(1);
+            rows.push(PlanRow { bin, bins: n, note });
+            i += n;
         }
         rows
     }

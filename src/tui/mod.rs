@@ -14,7 +14,7 @@ use ratatui::crossterm::event::{self, Event, KeyCode, KeyEvent, KeyEventKind, Ke
 use uuid::Uuid;
 
 use crate::app::review::load_coverage;
-use crate::app::ui::{AppState, Done, Effect, Key, Snapshot};
+use crate::app::ui::{AppState, Done, Effect, Key, Snapshot, radio_of};
 use crate::domain::ContactId;
 use crate::domain::coverage::CoverageConfig;
 use crate::domain::plan::{PlanConfig, make_plan};
@@ -62,9 +62,7 @@ pub fn snapshot(book: &Logbook, now: DateTime<Utc>) -> Result<Snapshot, StoreErr
         roster: book.roster()?,
         recent: recent.into_iter().map(|s| s.contact).collect(),
         newest: newest.first().map(|s| s.contact.start),
-        last_radio: newest
-            .first()
-            .map(|s| (s.contact.band, s.contact.frequency, s.contact.mode.clone())),
+        last_radio: newest.first().map(|s| radio_of(&s.contact)),
     })
 }
 
